@@ -1,0 +1,3 @@
+from sheetgen.cli import main
+
+main()

@@ -1,0 +1,69 @@
+"""Command line: thin. Parses, calls the core, prints, exits.
+
+Exit codes: 0 done; 1 a check found faults (preflight); 2 bad input (one line
+on stderr naming the key, option or file and what is allowed; nothing
+written); 3 a verification failed inside sheetgen (a bug: please report it).
+Command modules are imported only when their command runs, so that no command
+pays for another's heavy imports.
+"""
+
+from __future__ import annotations
+
+import importlib
+
+import click
+
+from sheetgen import __version__
+from sheetgen.errors import GeometryBug, SheetgenError
+
+COMMANDS = {
+    "parts": "sheetgen.commands.parts",
+}
+
+SHORT_HELP = {
+    "parts": "Write one kerf-compensated DXF (and SVG) per part, with a manifest.",
+}
+
+
+class _Group(click.Group):
+    def list_commands(self, ctx):
+        return list(COMMANDS)
+
+    def get_command(self, ctx, name):
+        if name not in COMMANDS:
+            return None
+        return importlib.import_module(COMMANDS[name]).command
+
+    def format_commands(self, ctx, formatter):
+        rows = [(name, SHORT_HELP.get(name, "")) for name in COMMANDS]
+        with formatter.section("Commands"):
+            formatter.write_dl(rows)
+
+    def invoke(self, ctx):
+        try:
+            return super().invoke(ctx)
+        except SheetgenError as exc:
+            click.echo(f"error: {exc}", err=True)
+            ctx.exit(2)
+        except GeometryBug as exc:
+            click.echo(f"internal error: {exc} (a bug in sheetgen {__version__}; nothing was written)", err=True)
+            ctx.exit(3)
+
+
+@click.group(cls=_Group, context_settings={"help_option_names": ["-h", "--help"]})
+@click.version_option(__version__, prog_name="sheetgen")
+def main():
+    """sheetgen: laser-cut single-axis sun-tracker kits from one parameter file.
+
+    Cautions: never laser-cut PVC, vinyl or other chlorinated plastics; run the
+    fume extraction (MDF and acrylic smoke is harmful); never leave a running
+    laser unattended. Gears pinch fingers. Secure an outdoor tracker against
+    wind; anything larger than a desk kit follows local codes and a licensed
+    engineer.
+    """
+
+
+def set_option(f):
+    """The repeatable ``--set KEY=VALUE`` option every parameter command takes."""
+    return click.option("--set", "overrides", multiple=True, metavar="KEY=VALUE",
+                        help="Override a parameter, e.g. --set laser.kerf=0.2 (repeatable).")(f)

@@ -1,0 +1,183 @@
+"""DXF writer: closed cut contours on layer ``CUT``, marks on their own layers.
+
+Same input, same bytes: the header metadata ezdxf would stamp (creation time,
+GUIDs) is fixed while writing, and entities are written in the order given.
+Holes come before the outline that encloses them, so a file's entity order is a
+valid cut order.
+"""
+
+from __future__ import annotations
+
+import io
+import logging
+import math
+from collections.abc import Iterable, Sequence
+from contextlib import contextmanager
+from dataclasses import dataclass
+from pathlib import Path
+
+from shapely.geometry import Polygon
+
+from sheetgen.part import LAYER_CUT, LAYER_GUIDE, LAYER_LABEL, Circle, Mark
+
+DXF_VERSIONS = {"R12": "R12", "R2000": "R2000"}
+# Layer colours (ACI): cut white/black, labels green, guides grey. Our own choice.
+LAYER_COLOURS = {LAYER_CUT: 7, LAYER_LABEL: 3, LAYER_GUIDE: 8}
+CIRCLE_MATCH_TOL_MM = 0.02
+
+
+@dataclass(frozen=True)
+class Contour:
+    """One closed cut path: a ring of points, or a true circle."""
+
+    points: tuple[tuple[float, float], ...] = ()
+    circle: tuple[float, float, float] | None = None  # (cx, cy, r)
+
+    @property
+    def is_circle(self) -> bool:
+        return self.circle is not None
+
+
+def _ring_points(ring) -> tuple[tuple[float, float], ...]:
+    coords = list(ring.coords)
+    if len(coords) > 1 and coords[0] == coords[-1]:
+        coords = coords[:-1]
+    return tuple((round(float(x), 6) + 0.0, round(float(y), 6) + 0.0) for x, y in coords)
+
+
+def _match_circle(ring, circles: Sequence[tuple[float, float, float]]) -> tuple[float, float, float] | None:
+    """The circle (cx, cy, r) this ring approximates, if any."""
+    if not circles:
+        return None
+    poly = Polygon(ring)
+    c = poly.centroid
+    x0, y0, x1, y1 = poly.bounds
+    r_box = (x1 - x0 + y1 - y0) / 4
+    for cx, cy, r in circles:
+        if math.hypot(c.x - cx, c.y - cy) < CIRCLE_MATCH_TOL_MM and abs(r_box - r) < max(CIRCLE_MATCH_TOL_MM, 0.01 * r):
+            return (cx, cy, r)
+    return None
+
+
+def polygon_contours(polygon: Polygon, circles: Iterable[tuple[float, float, float]] = (),
+                     circle_offset_mm: float = 0.0) -> list[Contour]:
+    """Contours of one polygon, holes first then the outline.
+
+    ``circles`` lists round holes (cx, cy, r) of the polygon *before* any
+    offset; ``circle_offset_mm`` is how far the polygon's holes were moved
+    outward by kerf compensation (holes shrink by it), so a hole of the offset
+    polygon is written as a true circle of radius r - offset.
+    """
+    circles = [(cx, cy, r - circle_offset_mm) for cx, cy, r in circles]
+    out = []
+    holes = sorted(polygon.interiors, key=lambda r: (round(r.bounds[0], 6), round(r.bounds[1], 6)))
+    for ring in holes:
+        hit = _match_circle(ring, circles)
+        if hit is not None:
+            cx, cy, r = hit
+            out.append(Contour(circle=(round(cx, 6) + 0.0, round(cy, 6) + 0.0, round(r, 6))))
+        else:
+            out.append(Contour(points=_ring_points(ring)))
+    out.append(Contour(points=_ring_points(polygon.exterior)))
+    return out
+
+
+def circles_of(circles: Iterable[Circle]) -> list[tuple[float, float, float]]:
+    return [(c.x_mm, c.y_mm, c.radius_mm) for c in circles]
+
+
+def _new_doc(dxf_version: str):
+    import ezdxf
+    from ezdxf import units
+
+    if dxf_version not in DXF_VERSIONS:
+        from sheetgen.errors import SheetgenError
+
+        raise SheetgenError(f"DXF version {dxf_version!r}: must be one of {', '.join(DXF_VERSIONS)}")
+    quiet = logging.getLogger("ezdxf")
+    level = quiet.level
+    quiet.setLevel(logging.ERROR)  # ezdxf warns that R12 has no units; we know
+    try:
+        with fixed_metadata():
+            doc = ezdxf.new(DXF_VERSIONS[dxf_version], setup=False, units=units.MM)
+    finally:
+        quiet.setLevel(level)
+    if dxf_version != "R12":  # R12 has no $INSUNITS; its files carry no unit
+        doc.units = units.MM
+        doc.header["$MEASUREMENT"] = 1  # metric
+    for name, colour in LAYER_COLOURS.items():
+        doc.layers.add(name, color=colour)
+    return doc
+
+
+def build_document(contours: Sequence[Contour], marks: Sequence[Mark] = (), dxf_version: str = "R2000"):
+    """An ezdxf document holding the contours (in order) and the marks."""
+    doc = _new_doc(dxf_version)
+    msp = doc.modelspace()
+    attribs = {"layer": LAYER_CUT}
+    for c in contours:
+        if c.is_circle:
+            cx, cy, r = c.circle
+            msp.add_circle((cx, cy), r, dxfattribs=attribs)
+        elif dxf_version == "R12":
+            msp.add_polyline2d(list(c.points), close=True, dxfattribs=attribs)
+        else:
+            msp.add_lwpolyline(list(c.points), close=True, dxfattribs=attribs)
+    for m in marks:
+        if m.kind == "text":
+            (x, y), = m.points
+            text = msp.add_text(m.text, height=m.height_mm, dxfattribs={"layer": m.layer})
+            text.set_placement((round(x, 6), round(y, 6)), align=_middle_center())
+        else:
+            pts = [(round(x, 6), round(y, 6)) for x, y in m.points]
+            if dxf_version == "R12":
+                msp.add_polyline2d(pts, dxfattribs={"layer": m.layer})
+            else:
+                msp.add_lwpolyline(pts, dxfattribs={"layer": m.layer})
+    return doc
+
+
+def _middle_center():
+    from ezdxf.enums import TextEntityAlignment
+
+    return TextEntityAlignment.MIDDLE_CENTER
+
+
+@contextmanager
+def fixed_metadata():
+    """ezdxf stamps creation/write times and GUIDs; fix them while inside."""
+    import ezdxf
+
+    previous = ezdxf.options.write_fixed_meta_data_for_testing
+    ezdxf.options.write_fixed_meta_data_for_testing = True
+    try:
+        yield
+    finally:
+        ezdxf.options.write_fixed_meta_data_for_testing = previous
+
+
+def document_bytes(doc) -> bytes:
+    """Serialise with fixed metadata so that equal input gives equal bytes."""
+    stream = io.StringIO()
+    with fixed_metadata():
+        doc.write(stream)
+    return stream.getvalue().encode("utf-8")
+
+
+def dxf_bytes(contours: Sequence[Contour], marks: Sequence[Mark] = (), dxf_version: str = "R2000") -> bytes:
+    return document_bytes(build_document(contours, marks, dxf_version))
+
+
+def write_cut_dxf(path: str | Path, polygons: Sequence[Polygon], *, circles: Iterable[tuple[float, float, float]] = (),
+                  circle_offset_mm: float = 0.0, marks: Sequence[Mark] = (), dxf_version: str = "R2000") -> None:
+    """Write polygons (already kerf-compensated) as closed contours on layer CUT.
+
+    Each polygon's holes are written before its outline; ``circles`` (cx, cy, r
+    of round holes before compensation) and ``circle_offset_mm`` let round holes
+    come out as true circles.
+    """
+    circles = list(circles)
+    contours: list[Contour] = []
+    for poly in polygons:
+        contours.extend(polygon_contours(poly, circles, circle_offset_mm))
+    Path(path).write_bytes(dxf_bytes(contours, marks, dxf_version))
