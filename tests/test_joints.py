@@ -1,0 +1,82 @@
+"""Tab-and-slot joints: tab against slot for every fit class, after kerf.
+
+Allowances per side (common practice for laser-cut 3 mm sheet, as documented
+in sheetgen/geometry/joints.py): press -0.04 mm, snug 0, slip +0.08 mm.
+"""
+
+from __future__ import annotations
+
+import pytest
+from shapely.geometry import LineString, Polygon
+
+from sheetgen.geometry.joints import FIT_CLEARANCE_MM, tab_layout
+from sheetgen.geometry.kerf import beam_leaves, cut_outline
+from sheetgen.kit import build_kit
+from sheetgen.spec import load_spec
+from tests.conftest import DEMO
+
+TOL = 0.01
+
+
+def _as_cut(part, kerf):
+    """The part as the laser leaves it: cut path eroded by half the kerf."""
+    return beam_leaves(cut_outline(part.fit_outline, kerf), kerf)
+
+
+def _rect_holes(poly: Polygon):
+    out = []
+    for ring in poly.interiors:
+        p = Polygon(ring)
+        x0, y0, x1, y1 = p.bounds
+        # rectangular and narrow: a slot (windows are rectangular too, but wide)
+        if abs(p.area - (x1 - x0) * (y1 - y0)) < 1e-6 and min(x1 - x0, y1 - y0) < 15:
+            out.append(sorted((x1 - x0, y1 - y0)))
+    return out
+
+
+def _tab_widths(poly: Polygon, y: float):
+    cross = poly.intersection(LineString([(-1e4, y), (1e4, y)]))
+    segs = getattr(cross, "geoms", [cross])
+    return [s.length for s in segs if not s.is_empty]
+
+
+@pytest.mark.parametrize("fit", ["press", "snug", "slip"])
+@pytest.mark.parametrize("kerf", [0.12, 0.2, 0.3])
+def test_tab_against_slot_after_kerf(fit, kerf):
+    spec = load_spec(DEMO, [f"joints.fit={fit}", f"laser.kerf={kerf}"])
+    kit = build_kit(spec)
+    t = spec.sheet.thickness_mm
+    c = FIT_CLEARANCE_MM[fit]
+    support = kit.part("axle-support")
+    base = kit.part("base")
+    # tabs on the support's foot, measured half way down the tab
+    foot_y = -spec.axle.height_mm - t / 2
+    widths = _tab_widths(_as_cut(support, kerf), foot_y)
+    assert widths, "no tabs found on the support foot"
+    tab = widths[0]
+    assert all(abs(w - tab) < TOL for w in widths)
+    slots = _rect_holes(_as_cut(base, kerf))
+    assert slots
+    for short, long in slots:
+        assert short - t == pytest.approx(2 * c, abs=TOL)  # across the sheet thickness
+        assert long - tab == pytest.approx(2 * c, abs=TOL)  # along the edge
+
+
+def test_sheet_thickness_flows_to_every_slot():
+    for t in (3.0, 4.0, 6.0):
+        spec = load_spec(DEMO, [f"sheet.thickness={t}", "axle.height=120", "motor.shaft_length=30"])
+        kit = build_kit(spec)
+        for part in kit.parts:
+            for short, _ in _rect_holes(part.outline):
+                assert short == pytest.approx(t, abs=1e-6), part.name
+        for j in kit.joints:
+            assert j.slot_width_mm == pytest.approx(t, abs=1e-6)
+
+
+def test_tab_layout_rules():
+    centres, w = tab_layout(200, 3)
+    assert w == 9  # three sheet thicknesses
+    assert centres[0] - w / 2 >= w - 1e-9 and centres[-1] + w / 2 <= 200 - w + 1e-9
+    assert all(b - a >= 2 * w for a, b in zip(centres, centres[1:]))
+    (only,), _ = tab_layout(20, 3)
+    assert only == 10
