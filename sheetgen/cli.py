@@ -18,10 +18,22 @@ from sheetgen.errors import GeometryBug, SheetgenError
 
 COMMANDS = {
     "parts": "sheetgen.commands.parts",
+    "gear": "sheetgen.commands.gear",
+    "balance": "sheetgen.commands.balance",
+    "nest": "sheetgen.commands.nest",
+    "preflight": "sheetgen.commands.preflight",
+    "coupon": "sheetgen.commands.coupon",
+    "kerf": "sheetgen.commands.kerf",
 }
 
 SHORT_HELP = {
     "parts": "Write one kerf-compensated DXF (and SVG) per part, with a manifest.",
+    "gear": "Draw one involute gear blank and print its caliper dimensions.",
+    "balance": "Mass, balance about the axle, torque and tooth checks.",
+    "nest": "Nest kits and extra parts onto sheet stock or a strip.",
+    "preflight": "Check any cut file for faults before it goes to the laser.",
+    "coupon": "Draw a kerf test piece to cut on your laser.",
+    "kerf": "Turn a caliper reading of the test piece into the kerf.",
 }
 
 
@@ -38,6 +50,25 @@ class _Group(click.Group):
         rows = [(name, SHORT_HELP.get(name, "")) for name in COMMANDS]
         with formatter.section("Commands"):
             formatter.write_dl(rows)
+
+    def main(self, args=None, prog_name=None, complete_var=None, standalone_mode=True, **extra):
+        """Like click's, but every usage error is one line on stderr, exit code 2."""
+        import sys
+
+        try:
+            rv = super().main(args=args, prog_name=prog_name, complete_var=complete_var,
+                              standalone_mode=False, **extra)
+        except click.UsageError as exc:
+            where = exc.ctx.command_path if exc.ctx is not None else "sheetgen"
+            click.echo(f"error: {exc.format_message()} (see {where} --help)", err=True)
+            sys.exit(2)
+        except click.ClickException as exc:
+            click.echo(f"error: {exc.format_message()}", err=True)
+            sys.exit(exc.exit_code)
+        except click.Abort:
+            click.echo("aborted", err=True)
+            sys.exit(1)
+        sys.exit(rv if isinstance(rv, int) else 0)
 
     def invoke(self, ctx):
         try:

@@ -102,6 +102,15 @@ class Mark:
     points: tuple[tuple[float, float], ...]
     text: str = ""
     height_mm: float = 3.0
+    angle_deg: float = 0.0  # text direction, counter-clockwise from +x
+
+    def moved(self, angle_deg: float, dx_mm: float, dy_mm: float) -> "Mark":
+        """This mark turned counter-clockwise by ``angle_deg`` about (0, 0), then moved."""
+        from sheetgen.geometry.shapes import turn_point
+
+        pts = tuple(tuple(round(v, 6) + 0.0 for v in turn_point(x, y, angle_deg, dx_mm, dy_mm))
+                    for x, y in self.points)
+        return Mark(self.layer, self.kind, pts, self.text, self.height_mm, (self.angle_deg + angle_deg) % 360.0)
 
 
 @dataclass(frozen=True)
@@ -153,7 +162,7 @@ class Part:
     placements: tuple[Placement, ...]
     rotations_deg: tuple[float, ...] = (0.0, 90.0, 180.0, 270.0)
     marks: tuple[Mark, ...] = ()
-    circles: tuple[Circle, ...] = ()
+    circles: tuple[Circle, ...] = ()  # round holes of the fit outline (what is cut, before kerf)
     fit_outline: Polygon | None = None
     description: str = ""
 

@@ -48,6 +48,13 @@ def clean(geom, what: str) -> Polygon:
     return geom
 
 
+def turn_point(x: float, y: float, angle_deg: float, dx_mm: float = 0.0, dy_mm: float = 0.0) -> tuple[float, float]:
+    """(x, y) turned counter-clockwise by ``angle_deg`` about (0, 0), then moved (the nester's convention)."""
+    a = math.radians(angle_deg)
+    c, s = math.cos(a), math.sin(a)
+    return (c * x - s * y + dx_mm, s * x + c * y + dy_mm)
+
+
 def d_shape(cx: float, cy: float, diameter_mm: float, across_flat_mm: float) -> Polygon:
     """A round hole with one flat (D profile) for a motor shaft; the flat is on +y."""
     r = diameter_mm / 2

@@ -28,7 +28,13 @@ CIRCLE_MATCH_TOL_MM = 0.02
 
 @dataclass(frozen=True)
 class Contour:
-    """One closed cut path: a ring of points, or a true circle."""
+    """One closed cut path: a ring of points, or a true circle.
+
+    A planned contour (sheetgen.cutplan.PlannedContour) also carries its
+    ``start`` point and an optional ``lead_in`` pierce point; the writer keeps
+    both: a planned circle becomes two half-circle arcs from its start, and a
+    contour with a lead-in one open path from the pierce point in and round.
+    """
 
     points: tuple[tuple[float, float], ...] = ()
     circle: tuple[float, float, float] | None = None  # (cx, cy, r)
@@ -116,17 +122,38 @@ def build_document(contours: Sequence[Contour], marks: Sequence[Mark] = (), dxf_
     msp = doc.modelspace()
     attribs = {"layer": LAYER_CUT}
     for c in contours:
-        if c.is_circle:
+        start = getattr(c, "start", None) if c.is_circle else None
+        lead_in = getattr(c, "lead_in", None)
+        if c.is_circle and start is None and lead_in is None:
             cx, cy, r = c.circle
             msp.add_circle((cx, cy), r, dxfattribs=attribs)
-        elif dxf_version == "R12":
-            msp.add_polyline2d(list(c.points), close=True, dxfattribs=attribs)
+            continue
+        closed = lead_in is None
+        if c.is_circle:
+            # two half circles from the planned start point (bulge 1 = a half circle)
+            cx, cy, _ = c.circle
+            sx, sy = start
+            pts = [(sx, sy, 1.0), (_r6(2 * cx - sx), _r6(2 * cy - sy), 1.0)]
+            if not closed:
+                pts.append((sx, sy, 0.0))
         else:
-            msp.add_lwpolyline(list(c.points), close=True, dxfattribs=attribs)
+            pts = [(x, y, 0.0) for x, y in c.points]
+            if not closed:
+                pts.append(pts[0])
+        if not closed:
+            # the lead-in belongs to its contour: one path from the pierce point in and round
+            pts.insert(0, (_r6(lead_in[0]), _r6(lead_in[1]), 0.0))
+        if dxf_version == "R12":
+            msp.add_polyline2d(pts, format="xyb", close=closed, dxfattribs=attribs)
+        else:
+            msp.add_lwpolyline(pts, format="xyb", close=closed, dxfattribs=attribs)
     for m in marks:
         if m.kind == "text":
             (x, y), = m.points
-            text = msp.add_text(m.text, height=m.height_mm, dxfattribs={"layer": m.layer})
+            attribs = {"layer": m.layer}
+            if m.angle_deg:
+                attribs["rotation"] = round(m.angle_deg, 6)
+            text = msp.add_text(m.text, height=m.height_mm, dxfattribs=attribs)
             text.set_placement((round(x, 6), round(y, 6)), align=_middle_center())
         else:
             pts = [(round(x, 6), round(y, 6)) for x, y in m.points]
@@ -135,6 +162,10 @@ def build_document(contours: Sequence[Contour], marks: Sequence[Mark] = (), dxf_
             else:
                 msp.add_lwpolyline(pts, dxfattribs={"layer": m.layer})
     return doc
+
+
+def _r6(v: float) -> float:
+    return round(float(v), 6) + 0.0
 
 
 def _middle_center():

@@ -42,7 +42,8 @@ def mark_elements(marks: Sequence[Mark], height_mm: float) -> list[str]:
     for m in marks:
         if m.kind == "text":
             (x, y), = m.points
-            out.append(f'<text x="{_f(x)}" y="{_f(height_mm - y)}" font-size="{_f(m.height_mm)}" '
+            turn = f' transform="rotate({_f(-m.angle_deg)} {_f(x)} {_f(height_mm - y)})"' if m.angle_deg else ""
+            out.append(f'<text x="{_f(x)}" y="{_f(height_mm - y)}" font-size="{_f(m.height_mm)}"{turn} '
                        f'font-family="sans-serif" text-anchor="middle" dominant-baseline="central" '
                        f'fill="#1f5f2a">{escape(m.text)}</text>')
         else:

@@ -1,0 +1,38 @@
+"""``sheetgen balance PARAMS``: mass, balance, torques and the drive check.
+
+Prints a readable table, or with ``--json`` one JSON object on stdout. The
+verdict is data: exit code 0 whether or not the design passes; bad input
+raises SheetgenError (exit code 2 through the CLI group).
+"""
+
+from __future__ import annotations
+
+import json
+
+import click
+
+from sheetgen.cli import set_option
+
+
+@click.command("balance")
+@click.argument("params", type=click.Path(dir_okay=False, path_type=str))
+@set_option
+@click.option("--json", "as_json", is_flag=True, help="Print one JSON object instead of the table.")
+def command(params: str, overrides: tuple[str, ...], as_json: bool) -> None:
+    """Check the turning frame's balance, the torque the drive needs and has,
+    the tooth stress, the counterweight and the ballast for the design wind.
+
+    Anything larger than a desk kit: wind and snow loads follow local codes
+    (for example ASCE 7, EN 1991-1-4) and a licensed engineer.
+    """
+    from sheetgen.kit import build_kit
+    from sheetgen.mechanics.check import balance_check, render_text
+    from sheetgen.spec import load_spec
+
+    spec = load_spec(params, overrides)
+    kit = build_kit(spec)
+    report = balance_check(kit, spec)
+    if as_json:
+        click.echo(json.dumps(report.to_json(), indent=2, allow_nan=False))
+    else:
+        click.echo(render_text(report))

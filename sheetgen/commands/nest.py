@@ -1,0 +1,170 @@
+"""sheetgen nest: a production run nested onto sheet stock (or a strip)."""
+
+from __future__ import annotations
+
+import json
+import sys
+import time
+
+import click
+
+from sheetgen.cli import set_option
+from sheetgen.errors import ParameterError
+
+
+def parse_size(text: str, option: str) -> tuple[float, float]:
+    """``600x400`` -> (600.0, 400.0)."""
+    try:
+        w, h = (float(v) for v in text.lower().replace("×", "x").split("x"))
+    except ValueError:
+        raise ParameterError(f"{option} {text}: must be W x H in mm, e.g. {option} 600x400") from None
+    if not (w > 0 and h > 0) or w == float("inf") or h == float("inf"):
+        raise ParameterError(f"{option} {text}: both sizes must be positive numbers of mm")
+    return (w, h)
+
+
+def parse_extra(text: str) -> tuple[str, int]:
+    """``FILE.dxf[:QTY]`` -> (path, qty)."""
+    path, qty = text, 1
+    head, sep, tail = text.rpartition(":")
+    if sep and tail.strip().lstrip("-").isdigit():
+        path, qty = head, int(tail)
+    if qty < 1:
+        raise ParameterError(f"--extra {text}: quantity {qty}: must be a whole number >= 1")
+    return path, qty
+
+
+class Progress:
+    """A progress line on stderr when it is a terminal and the run takes more than a second."""
+
+    def __init__(self):
+        self.enabled = sys.stderr.isatty()
+        self.t0 = time.monotonic()
+        self.shown = False
+
+    def __call__(self, fraction: float, message: str) -> None:
+        if not self.enabled or time.monotonic() - self.t0 < 1.0:
+            return
+        width = 30
+        done = int(round(fraction * width))
+        sys.stderr.write(f"\r[{'#' * done}{'.' * (width - done)}] {fraction * 100:5.1f}% {message[:40]:<40}")
+        sys.stderr.flush()
+        self.shown = True
+
+    def close(self) -> None:
+        if self.shown:
+            sys.stderr.write("\r" + " " * 80 + "\r")
+            sys.stderr.flush()
+
+
+@click.command("nest")
+@click.argument("params", required=False, type=click.Path(dir_okay=False))
+@click.option("--kits", type=int, default=None, help="Kits to nest (default 1 with PARAMS).")
+@click.option("--extra", "extras", multiple=True, metavar="FILE.dxf[:QTY]",
+              help="Extra parts: each closed outer contour (with the contours inside it as holes) is one part.")
+@click.option("--sheet", "sheet", metavar="WxH", help="Sheet stock size in mm (default: sheet.width x sheet.height).")
+@click.option("--strip-width", type=float, default=None, metavar="W",
+              help="Nest on a strip W mm wide along y, as short as possible along +x.")
+@click.option("--rotations", default=None, metavar="LIST", help="Allowed rotations for every part, e.g. 0,180.")
+@click.option("--spacing", type=float, default=None, help="Clear gap between cut contours, mm.")
+@click.option("--margin", type=float, default=None, help="Clear border at the sheet edge, mm.")
+@click.option("--kerf", type=float, default=None, help="Kerf, mm (default laser.kerf, or 0 without PARAMS).")
+@click.option("--time-limit", type=float, default=None, metavar="SECONDS", help="Time for improving the layout.")
+@click.option("--seed", type=int, default=None, help="Seed of the improvement search.")
+@click.option("-o", "--out", "out_dir", required=True, type=click.Path(file_okay=False))
+@click.option("--json", "as_json", is_flag=True, help="Print one JSON object on stdout.")
+@set_option
+def command(params, kits, extras, sheet, strip_width, rotations, spacing, margin, kerf, time_limit, seed,
+            out_dir, as_json, overrides):
+    """Nest kits and extra parts onto sheets; write sheet-01.dxf, ... and SVG previews into OUT."""
+    from sheetgen.errors import GeometryBug
+    from sheetgen.io.output import staged_dir
+    from sheetgen.io.sheets import write_sheets
+    from sheetgen.nesting import nest, verify
+    from sheetgen.production import extra_items, kit_items, nest_summary, parse_rotations, placed_sheets
+
+    start = time.perf_counter()
+    angles = parse_rotations(rotations) if rotations is not None else None
+    items, sources = [], []
+    if params is not None:
+        from sheetgen.kit import build_kit
+        from sheetgen.spec import load_spec
+
+        spec = load_spec(params, overrides)
+        kerf = spec.laser.kerf_mm if kerf is None else kerf
+        spacing = spec.nest.spacing_mm if spacing is None else spacing
+        margin = spec.sheet.margin_mm if margin is None else margin
+        time_limit = spec.nest.time_limit_s if time_limit is None else time_limit
+        seed = spec.nest.seed if seed is None else seed
+        if sheet is None and strip_width is None:
+            sheet_mm = (spec.sheet.width_mm, spec.sheet.height_mm)
+        else:
+            sheet_mm = parse_size(sheet, "--sheet") if sheet is not None else None
+        _check_kerf(kerf)
+        items, sources = kit_items(build_kit(spec), kerf, 1 if kits is None else kits, angles)
+    else:
+        if overrides:
+            raise ParameterError("--set needs a parameter file (PARAMS)")
+        if kits is not None:
+            raise ParameterError("--kits needs a parameter file (PARAMS)")
+        kerf, spacing, margin = kerf or 0.0, spacing or 0.0, margin or 0.0
+        time_limit = 10.0 if time_limit is None else time_limit
+        seed = 1 if seed is None else seed
+        if sheet is None and strip_width is None:
+            raise ParameterError("give --sheet WxH or --strip-width W (or a parameter file)")
+        sheet_mm = parse_size(sheet, "--sheet") if sheet is not None else None
+        _check_kerf(kerf)
+    if sheet is not None and strip_width is not None:
+        raise ParameterError("--sheet and --strip-width: give one, not both")
+    if strip_width is not None:
+        sheet_mm = None
+    for name, value, hi in (("--spacing", spacing, 100.0), ("--margin", margin, 500.0),
+                            ("--time-limit", time_limit, 3600.0)):
+        if not (0 <= value <= hi):
+            raise ParameterError(f"{name} {value:g}: must be from 0 to {hi:g}")
+    if extras:
+        from sheetgen.io.dxf_read import read_dxf_parts
+
+        found = []
+        for text in extras:
+            path, qty = parse_extra(text)
+            for part in read_dxf_parts(path):
+                found.append((part.name, part.polygon, part.circles, qty))
+        e_items, e_sources = extra_items(found, kerf, angles or (0.0, 90.0, 180.0, 270.0))
+        items += e_items
+        sources += e_sources
+    if not items:
+        raise ParameterError("nothing to nest: give a parameter file or --extra FILE.dxf")
+
+    progress = Progress()
+    try:
+        result = nest(items, sheet_mm=sheet_mm, strip_width_mm=strip_width, margin_mm=margin, spacing_mm=spacing,
+                      time_limit_s=time_limit, seed=seed, progress=progress)
+    finally:
+        progress.close()
+    try:
+        verify(result, items)
+    except GeometryBug as exc:
+        raise GeometryBug(f"nested layout failed verification: {exc}") from None
+    sheets = placed_sheets(result, items, sources)
+    size = result.sheet_size_mm
+    with staged_dir(out_dir) as tmp:
+        files = write_sheets(tmp, sheets, size, margin)
+    summary = nest_summary(result) | {"kerf_mm": kerf, "seed": seed, "files": files,
+                                      "time_s": round(time.perf_counter() - start, 2)}
+    if as_json:
+        click.echo(json.dumps(summary))
+        return
+    mode = (f"strip {size[1]:g} mm wide, {result.strip_length_mm:.1f} mm long" if result.strip_length_mm is not None
+            else f"{len(result.sheets)} sheet(s) of {size[0]:g} x {size[1]:g} mm")
+    click.echo(f"{result.parts_placed} parts on {mode} "
+               f"(area lower bound {result.area_lower_bound_sheets}); "
+               f"utilisation {', '.join(f'{u * 100:.1f} %' for u in result.utilisation)}")
+    if result.unplaced:
+        click.echo(f"{len(result.unplaced)} parts could not be placed", err=True)
+    click.echo(f"written to {out_dir}: {', '.join(files)} ({summary['time_s']} s)")
+
+
+def _check_kerf(kerf: float) -> None:
+    if not (0 <= kerf <= 0.6):
+        raise ParameterError(f"--kerf {kerf:g}: must be from 0 to 0.6 mm")

@@ -1,0 +1,78 @@
+"""`sheetgen balance`: JSON keys, table, exit codes."""
+
+from __future__ import annotations
+
+import json
+from pathlib import Path
+
+import pytest
+from click.testing import CliRunner
+
+from sheetgen import cli
+from sheetgen.commands.balance import command
+from sheetgen.errors import SheetgenError
+
+DEMO = Path(__file__).resolve().parents[1] / "params" / "demo.toml"
+
+KEYS = ("rotating_mass_kg", "cg_mm", "static_unbalance_gmm", "axle_tilt_deg", "tracking_range_deg",
+        "gravity_torque_max_Nm", "friction_torque_Nm", "wind_torque_Nm", "load_torque_Nm", "gear_ratio",
+        "motor_torque_required_Nm", "motor_torque_available_Nm", "torque_margin", "tooth_stress_MPa",
+        "tooth_stress_allowable_MPa", "counterweight", "ballast_kg", "ok", "checks")
+
+
+@pytest.fixture
+def group():
+    """The real CLI group, which maps SheetgenError to exit code 2."""
+    assert cli.main.get_command(None, "balance") is command
+    return cli.main
+
+
+def test_json_has_the_keys(group):
+    res = CliRunner().invoke(group, ["balance", str(DEMO), "--json"])
+    assert res.exit_code == 0, res.output
+    j = json.loads(res.output)
+    for k in KEYS:
+        assert k in j, k
+    assert len(j["cg_mm"]) == 3 and len(j["tracking_range_deg"]) == 2
+    assert set(j["counterweight"]) >= {"mass_kg", "position_mm"} and len(j["counterweight"]["position_mm"]) == 3
+    assert isinstance(j["ok"], bool)
+    for c in j["checks"]:
+        assert set(c) >= {"name", "pass", "value", "limit", "reason"}
+    assert j["ok"] == all(c["pass"] for c in j["checks"] if c["binding"])
+
+
+def test_table_and_cautions(group):
+    res = CliRunner().invoke(group, ["balance", str(DEMO)])
+    assert res.exit_code == 0, res.output
+    assert "static unbalance" in res.output and "Checks:" in res.output
+    assert "ASCE 7" in res.output and "EN 1991-1-4" in res.output and "licensed engineer" in res.output
+
+
+def test_failing_design_still_exits_0(group):
+    res = CliRunner().invoke(group, ["balance", str(DEMO), "--json", "--set", "motor.stall_torque=0.001"])
+    assert res.exit_code == 0
+    j = json.loads(res.output)
+    assert j["ok"] is False
+    assert any(c["name"] == "motor torque" and not c["pass"] for c in j["checks"])
+
+
+@pytest.mark.parametrize("args,word", [
+    (["--set", "site.latitude=80"], "site.latitude"),
+    (["--set", "site.windspeed=3"], "site.wind_speed"),
+    (["--set", "drive.pinion_teeth=10"], "drive.pinion_teeth"),
+])
+def test_bad_input_exits_2_naming_the_key(group, args, word):
+    res = CliRunner().invoke(group, ["balance", str(DEMO), *args])
+    assert res.exit_code == 2
+    assert word in res.output and "Traceback" not in res.output
+
+
+def test_missing_file_exits_2(group, tmp_path):
+    res = CliRunner().invoke(group, ["balance", str(tmp_path / "nope.toml")])
+    assert res.exit_code == 2 and "nope.toml" in res.output
+
+
+def test_command_object_raises_sheetgen_error():
+    # the command itself raises; the group turns it into exit code 2
+    res = CliRunner().invoke(command, [str(DEMO), "--set", "site.latitude=80"])
+    assert isinstance(res.exception, SheetgenError)
