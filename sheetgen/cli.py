@@ -17,6 +17,7 @@ from sheetgen import __version__
 from sheetgen.errors import GeometryBug, SheetgenError
 
 COMMANDS = {
+    "build": "sheetgen.commands.build",
     "parts": "sheetgen.commands.parts",
     "gear": "sheetgen.commands.gear",
     "balance": "sheetgen.commands.balance",
@@ -27,6 +28,7 @@ COMMANDS = {
 }
 
 SHORT_HELP = {
+    "build": "The whole job: parts, nested sheets in cut order, report and summary.",
     "parts": "Write one kerf-compensated DXF (and SVG) per part, with a manifest.",
     "gear": "Draw one involute gear blank and print its caliper dimensions.",
     "balance": "Mass, balance about the axle, torque and tooth checks.",

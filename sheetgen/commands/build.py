@@ -1,0 +1,58 @@
+"""sheetgen build: from a parameter file to everything the workshop needs at the laser."""
+
+from __future__ import annotations
+
+import json
+import time
+
+import click
+
+from sheetgen.cli import set_option
+
+
+@click.command("build")
+@click.argument("params", required=False, type=click.Path(dir_okay=False))
+@click.option("--kits", type=int, default=1, show_default=True, help="Kits in the production run.")
+@click.option("-o", "--out", "out_dir", required=True, type=click.Path(file_okay=False),
+              help="Folder to write into (replaced when complete).")
+@click.option("--dxf-version", type=click.Choice(["R2000", "R12"]), default="R2000", show_default=True)
+@set_option
+def command(params, kits, out_dir, dxf_version, overrides):
+    """Parts, nested sheets in cut order, report.html and summary.json for a production run.
+
+    Without PARAMS it runs the demo parameters that ship with sheetgen.
+    """
+    from sheetgen.build import run_build
+    from sheetgen.commands.nest import Progress
+    from sheetgen.io.output import staged_dir
+    from sheetgen.io.partfiles import write_part_files
+    from sheetgen.io.report import render_report
+    from sheetgen.io.sheets import write_sheets
+    from sheetgen.spec import demo_params_path, load_spec
+
+    start = time.perf_counter()
+    spec = load_spec(params if params is not None else demo_params_path(), overrides)
+    progress = Progress()
+    try:
+        build = run_build(spec, kits, progress=progress)
+    finally:
+        progress.close()
+    with staged_dir(out_dir) as tmp:
+        (tmp / "parts").mkdir()
+        (tmp / "sheets").mkdir()
+        write_part_files(build.kit, spec, tmp / "parts", dxf_version)
+        from sheetgen.cutplan import cut_plan_contours
+
+        write_sheets(tmp / "sheets", [r.sheet for r in build.sheets], build.nest.sheet_size_mm,
+                     build.nest.margin_mm, [cut_plan_contours(r.plan) for r in build.sheets], dxf_version)
+        (tmp / "summary.json").write_text(json.dumps(build.summary, indent=2) + "\n", encoding="utf-8")
+        (tmp / "report.html").write_text(render_report(build), encoding="utf-8")
+    s = build.summary
+    click.echo(f"{s['kits']} kit(s): {s['parts']} parts on {s['sheets']} sheet(s) "
+               f"(area bound {s['area_lower_bound_sheets']}), utilisation "
+               + ", ".join(f"{u * 100:.1f} %" for u in s["utilisation"]))
+    click.echo(f"cut {s['cut_length_mm'] / 1000:.2f} m, {s['pierces']} pierces, travel {s['travel_mm'] / 1000:.2f} m "
+               f"(planning saved {(s['travel_unplanned_mm'] - s['travel_mm']) / 1000:.2f} m), "
+               f"laser time {s['cut_time_s'] / 60:.1f} min" + (f", cost {s['cost']:.2f}" if s["cost"] is not None else ""))
+    click.echo(("design checks pass" if s["checks_ok"] else "A DESIGN CHECK FAILS: see report.html")
+               + f"; written to {out_dir} in {time.perf_counter() - start:.1f} s")

@@ -1,0 +1,192 @@
+"""report.html: one self-contained page (inline CSS and SVG, nothing fetched)."""
+
+from __future__ import annotations
+
+from html import escape
+
+from sheetgen.io.sheets import sheet_name, sheet_svg
+
+CAUTIONS = (
+    ("Laser", "Never laser-cut PVC, vinyl or any other chlorinated plastic: it gives off hydrochloric acid. "
+              "Run the fume extraction and ventilate: MDF and acrylic smoke is harmful. Never leave a running "
+              "laser unattended, and keep a suitable fire extinguisher at hand."),
+    ("Gears", "The gears and the turning frame pinch fingers. Keep hands clear while the motor is powered, "
+              "and stop the motor at the travel ends."),
+    ("Wind", "A tracker outdoors catches wind like a sail. Screw the base down through its anchor holes, "
+             "or ballast it as the balance check advises."),
+    ("Scale", "This kit is a desk or classroom model. A full-size array is structural work: its wind and "
+              "snow loads follow local codes (for example ASCE 7, EN 1991-1-4) and a licensed engineer, "
+              "not this tool."),
+)
+
+CSS = """
+body{font-family:system-ui,-apple-system,'Segoe UI',sans-serif;margin:0;color:#1d232a;background:#f4f2ee}
+main{max-width:1100px;margin:0 auto;padding:24px 28px 60px;background:#fff}
+h1{font-size:26px;margin:0 0 6px} h2{font-size:19px;margin:30px 0 10px;border-bottom:2px solid #e4ded3;padding-bottom:4px}
+p.lead{font-size:16px;line-height:1.5;margin:6px 0 16px}
+table{border-collapse:collapse;width:100%;font-size:14px;margin:6px 0}
+th,td{text-align:left;padding:5px 8px;border-bottom:1px solid #ebe6dc;vertical-align:top}
+th{background:#f7f4ef;font-weight:600} td.num{text-align:right;font-variant-numeric:tabular-nums}
+.pass{color:#1b6e2a;font-weight:700} .fail{color:#a11d1d;font-weight:700} .note{color:#8a5a00;font-weight:700}
+.verdict{display:inline-block;padding:4px 10px;border-radius:4px;font-weight:700;margin:4px 0 10px}
+.verdict.ok{background:#dff3e2;color:#1b6e2a} .verdict.bad{background:#f8dede;color:#a11d1d}
+.figures{display:grid;grid-template-columns:repeat(auto-fit,minmax(150px,1fr));gap:10px;margin:12px 0}
+.figure{background:#f7f4ef;border-radius:6px;padding:10px} .figure b{display:block;font-size:20px}
+.figure span{font-size:12px;color:#5b6570}
+.sheet{margin:14px 0 22px} .sheet svg{width:100%;height:auto;border:1px solid #ddd;background:#fff}
+.model svg{max-width:100%;height:auto}
+.caution{background:#fff6e0;border-left:4px solid #e0a100;padding:8px 12px;margin:6px 0}
+small{color:#5b6570}
+"""
+
+
+def _f(v, nd=1, unit=""):
+    if v is None:
+        return "–"
+    return f"{v:,.{nd}f}{unit}"
+
+
+def _row(cells, num=()):
+    return "<tr>" + "".join(f'<td class="num">{c}</td>' if i in num else f"<td>{c}</td>"
+                            for i, c in enumerate(cells)) + "</tr>"
+
+
+def _table(head, rows, num=()):
+    h = "".join(f"<th>{escape(x)}</th>" for x in head)
+    return f"<table><thead><tr>{h}</tr></thead><tbody>{''.join(_row(r, num) for r in rows)}</tbody></table>"
+
+
+def render_report(build, assembly_svg: str | None = None) -> str:
+    """The report page for a finished build (sheetgen.build.BuildResult)."""
+    s = build.summary
+    spec = build.spec
+    minutes = s["cut_time_s"] / 60
+    cost = f", costing {s['cost']:.2f} in sheets and machine time" if s["cost"] is not None else ""
+    ok = s["checks_ok"]
+    job = (f"Cut {s['kits']} kit{'s' if s['kits'] != 1 else ''} of a {spec.panel.width_mm:g} × "
+           f"{spec.panel.height_mm:g} mm panel tracker from {s['sheets']} sheet{'s' if s['sheets'] != 1 else ''} "
+           f"of {spec.sheet.thickness_mm:g} mm {escape(spec.sheet.material.replace('_', ' '))} "
+           f"({spec.sheet.width_mm:g} × {spec.sheet.height_mm:g} mm): {s['parts']} parts in about "
+           f"{minutes:.0f} minutes of laser time{cost}.")
+    out = [f"<!DOCTYPE html><html lang=\"en\"><head><meta charset=\"utf-8\"><title>sheetgen report: "
+           f"{escape(s['parameters'])}</title><style>{CSS}</style></head><body><main>",
+           f"<h1>Tracker kit production run: {escape(s['parameters'])}</h1>",
+           f"<p class=\"lead\">{job}</p>",
+           f"<div class=\"verdict {'ok' if ok else 'bad'}\">"
+           f"{'All design checks pass' if ok else 'A design check fails: see the checks below before cutting'}</div>",
+           '<div class="figures">',
+           *(f'<div class="figure"><b>{v}</b><span>{k}</span></div>' for k, v in (
+               ("sheets (area bound " + str(s["area_lower_bound_sheets"]) + ")", s["sheets"]),
+               ("parts", s["parts"]),
+               ("laser time", f"{minutes:.1f} min"),
+               ("cut length", f"{s['cut_length_mm'] / 1000:.2f} m"),
+               ("pierces", s["pierces"]),
+               ("travel (saved by planning)",
+                f"{s['travel_mm'] / 1000:.2f} m ({(s['travel_unplanned_mm'] - s['travel_mm']) / 1000:.2f} m)"),
+               ("cost", "–" if s["cost"] is None else f"{s['cost']:.2f}"),
+           )),
+           "</div>"]
+    out += _checks(build)
+    out += ["<h2>Sheets</h2>",
+            "<p><small>Drawn to scale; the dashed line is the sheet margin. Each sheet's DXF lists the "
+            "contours in cut order: holes and nested parts before the outlines around them.</small></p>"]
+    for run in build.sheets:
+        name = sheet_name(run.sheet.index)
+        out.append(f'<div class="sheet"><b>{name}</b> — {len(run.sheet.polygons)} parts, utilisation '
+                   f"{run.utilisation * 100:.1f} %, {run.plan.pierces} pierces, {run.plan.cut_time_s / 60:.1f} min"
+                   + sheet_svg(run.sheet, build.nest.sheet_size_mm, build.nest.margin_mm, fragment=True) + "</div>")
+    out += _bom(build)
+    out += _gears(build)
+    out += _cut_table(build)
+    if assembly_svg:
+        out += ["<h2>Assembled kit</h2>", f'<div class="model">{assembly_svg}</div>']
+    out += ["<h2>Safety</h2>"]
+    out += [f'<div class="caution"><b>{escape(k)}.</b> {escape(v)}</div>' for k, v in CAUTIONS]
+    out += ["<p><small>Made by sheetgen from the parameters above. Figures marked as estimates rest on the "
+            "sources named in the project's documentation; check press fits on a test coupon first.</small></p>",
+            "</main></body></html>\n"]
+    return "\n".join(out)
+
+
+def _checks(build):
+    b = build.summary["balance"]
+    rows = []
+    for c in b["checks"]:
+        if c["pass"]:
+            verdict = '<span class="pass">pass</span>'
+        elif c.get("binding", True):
+            verdict = '<span class="fail">FAIL</span>'
+        else:
+            verdict = '<span class="note">advice</span>'
+        rows.append((escape(c["name"]), verdict, escape(c["reason"])))
+    cw = b["counterweight"]
+    figures = [
+        ("turning mass", _f(b["rotating_mass_kg"] * 1000, 1, " g")),
+        ("CG (kit frame x, y, z)", ", ".join(_f(v, 1) for v in b["cg_mm"]) + " mm"),
+        ("static unbalance", _f(b["static_unbalance_gmm"], 0, " g·mm")),
+        ("tracking range", f"{b['tracking_range_deg'][0]:g} to {b['tracking_range_deg'][1]:g} deg"),
+        ("torque at the axle: gravity / friction / wind", f"{b['gravity_torque_max_Nm']:.4f} / "
+                                                          f"{b['friction_torque_Nm']:.4f} / {b['wind_torque_Nm']:.4f} N·m"),
+        ("load torque, worst case", f"{b['load_torque_Nm']:.4f} N·m"),
+        ("motor torque required / available", f"{b['motor_torque_required_Nm']:.4f} / "
+                                              f"{b['motor_torque_available_Nm']:.4f} N·m (margin {b['torque_margin']:.2f})"),
+        ("tooth stress / allowable", f"{b['tooth_stress_MPa']:.2f} / {b['tooth_stress_allowable_MPa']:.2f} MPa"),
+        ("counterweight to balance", f"{cw['mass_kg'] * 1000:.1f} g at ({', '.join(_f(v, 1) for v in cw['position_mm'])}) mm"
+         if cw.get("found", True) else "no place found on the frame"),
+        ("ballast against tipping in the design wind", f"{b['ballast_kg']:.2f} kg"),
+    ]
+    return ["<h2>Balance, torque and strength checks</h2>",
+            _table(("check", "verdict", "why"), rows),
+            _table(("figure", "value"), [(escape(k), escape(v)) for k, v in figures])]
+
+
+def _bom(build):
+    rows = []
+    total = 0.0
+    for e in build.summary["bill_of_materials"]:
+        total += e["mass_kg"] * e["qty_per_kit"]
+        rows.append((escape(e["name"]), e["qty_per_kit"], e["qty"], f"{e['bbox_mm'][0]:.1f} × {e['bbox_mm'][1]:.1f}",
+                     _f(e["mass_kg"] * 1000, 1), escape(e["description"])))
+    return ["<h2>Parts</h2>",
+            _table(("part", "per kit", f"for {build.kits} kits", "size mm", "mass g each", "what it does"), rows,
+                   num=(1, 2, 4)),
+            f"<p><small>Cut parts per kit weigh {total * 1000:.0f} g in "
+            f"{escape(build.spec.sheet.material.replace('_', ' '))}; files for single parts are in parts/.</small></p>"]
+
+
+def _gears(build):
+    g = build.summary["gears"]
+    keys = (("teeth", "teeth", 0), ("module", "module_mm", 2), ("profile shift x", "shift", 3),
+            ("pitch diameter", "pitch_diameter_mm", 3), ("base diameter", "base_diameter_mm", 3),
+            ("tip diameter", "tip_diameter_mm", 3), ("root diameter", "root_diameter_mm", 3))
+    rows = [(label, _f(g["pinion"][k], nd) if nd else g["pinion"][k], _f(g["wheel"][k], nd) if nd else g["wheel"][k])
+            for label, k, nd in keys]
+    rows.append(("span over k teeth", f"{g['pinion']['span_mm']:.3f} (k = {g['pinion']['span_teeth']})",
+                 f"{g['wheel']['span_mm']:.3f} (k = {g['wheel']['span_teeth']})"))
+    rows.append(("over two pins", f"{g['pinion']['over_pins_mm']:.3f} (pins {g['pinion']['pin_diameter_mm']:.2f})",
+                 f"{g['wheel']['over_pins_mm']:.3f} (pins {g['wheel']['pin_diameter_mm']:.2f})"))
+    warnings = g["warnings"] + g["pinion"]["warnings"] + g["wheel"]["warnings"]
+    return ["<h2>Gears: check them with calipers</h2>",
+            f"<p>Centre distance {g['centre_distance_mm']:.3f} mm, ratio {g['ratio']:g}, "
+            f"transverse contact ratio {g['contact_ratio']:.2f}. Dimensions of the finished gears in mm.</p>",
+            _table(("", "pinion", "wheel"), rows, num=(1, 2)),
+            *(f'<p class="note">{escape(w)}</p>' for w in dict.fromkeys(warnings))]
+
+
+def _cut_table(build):
+    rows = []
+    for e in build.summary["sheet_runs"]:
+        rows.append((escape(e["file"]), e["parts"], f"{e['utilisation'] * 100:.1f} %", e["pierces"],
+                     _f(e["cut_length_mm"] / 1000, 2), _f(e["travel_mm"] / 1000, 2),
+                     _f(e["travel_saved_mm"] / 1000, 2), _f(e["cut_time_s"] / 60, 1),
+                     "–" if e["cost"] is None else f"{e['cost']:.2f}"))
+    s = build.summary
+    rows.append(("<b>total</b>", s["parts"], "", s["pierces"], _f(s["cut_length_mm"] / 1000, 2),
+                 _f(s["travel_mm"] / 1000, 2), _f((s["travel_unplanned_mm"] - s["travel_mm"]) / 1000, 2),
+                 _f(s["cut_time_s"] / 60, 1), "–" if s["cost"] is None else f"{s['cost']:.2f}"))
+    spec = build.spec
+    return ["<h2>Cut time and cost</h2>",
+            f"<p><small>Cutting at {spec.laser.cut_speed_mm_s:g} mm/s, travelling at {spec.laser.rapid_speed_mm_s:g} "
+            f"mm/s, {spec.laser.pierce_time_s:g} s per pierce; kerf {spec.laser.kerf_mm:g} mm.</small></p>",
+            _table(("sheet", "parts", "used", "pierces", "cut m", "travel m", "travel saved m", "time min", "cost"),
+                   rows, num=(1, 2, 3, 4, 5, 6, 7, 8))]
