@@ -25,6 +25,7 @@ COMMANDS = {
     "preflight": "sheetgen.commands.preflight",
     "coupon": "sheetgen.commands.coupon",
     "kerf": "sheetgen.commands.kerf",
+    "assemble": "sheetgen.commands.assemble",
 }
 
 SHORT_HELP = {
@@ -36,6 +37,7 @@ SHORT_HELP = {
     "preflight": "Check any cut file for faults before it goes to the laser.",
     "coupon": "Draw a kerf test piece to cut on your laser.",
     "kerf": "Turn a caliper reading of the test piece into the kerf.",
+    "assemble": "Build the kit in 3D (STEP), check interference and clearance.",
 }
 
 

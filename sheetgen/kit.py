@@ -91,6 +91,7 @@ def _joints(spec, blanks: dict[str, Blank]):
         rects = tab_rects(edge, centres, width, t)
         tabs.setdefault(tab_name, []).extend(rects)
         per_instance = received.setdefault(slot_name, [[] for _ in sb.placements])
+        own = []  # this joint's slots
         for tp in tb.placements:
             for r in rects:
                 hits = 0
@@ -103,11 +104,11 @@ def _joints(spec, blanks: dict[str, Blank]):
                         raise GeometryBug(f"joint {tab_name}.{edge_name} -> {slot_name}: slot at "
                                           f"({fp.centroid.x:.1f}, {fp.centroid.y:.1f}) leaves the {slot_name} outline")
                     per_instance[k].append(fp)
+                    own.append(fp)
                     hits += 1
                 if hits == 0:
                     raise GeometryBug(f"joint {tab_name}.{edge_name} -> {slot_name}: a tab reaches no {slot_name}")
-        fp0 = next(fp for prints in per_instance for fp in prints)
-        x0, y0, x1, y1 = fp0.bounds
+        x0, y0, x1, y1 = own[0].bounds
         joints.append(Joint(tab_name, slot_name, len(rects) * len(tb.placements), width,
                             max(x1 - x0, y1 - y0), min(x1 - x0, y1 - y0), t, spec.joints.fit))
     slots: dict[str, list[Polygon]] = {}

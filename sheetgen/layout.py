@@ -53,6 +53,7 @@ class Layout:
     stretcher_h_mm: float
     spacers_per_side: int
     axial_play_mm: float
+    shaft_through_support: bool  # the motor shaft reaches into the +x support (it gets a clearance hole)
     # drive
     wheel_x_mm: float  # inner face of the wheel stack
     gear_layers: int
@@ -117,6 +118,14 @@ def compute_layout(spec, centre_distance_mm: float) -> Layout:
         raise ParameterError(
             f"motor.shaft_length = {spec.motor.shaft_length_mm:g}: too short to carry the pinion through the mount; "
             f"must be at least {need_shaft:g} mm (sheet.thickness + {MOUNT_GAP_MM:g} mm gap + drive.layers x sheet.thickness)")
+    # beyond the pinion the shaft may run on through the spacer's gap and a clearance hole
+    # in the +x support (cut when it needs one), but never into the turning frame
+    shaft_free = need_shaft + t  # mount face to the support's outer face
+    shaft_max = shaft_free + t  # to the support's inner face
+    if spec.motor.shaft_length_mm > shaft_max + 1e-9:
+        raise ParameterError(
+            f"motor.shaft_length = {spec.motor.shaft_length_mm:g}: the shaft would reach past the axle support "
+            f"into the turning frame; must be at most {shaft_max:g} mm (shorten the shaft, or raise drive.layers)")
     a = math.radians(spec.drive.pinion_angle_deg)
     pinion_y = centre_distance_mm * math.sin(a)
     pinion_z = -centre_distance_mm * math.cos(a)
@@ -138,6 +147,7 @@ def compute_layout(spec, centre_distance_mm: float) -> Layout:
         support_x_mm=support_x, support_half_y_mm=support_half_y, support_hub_r_mm=support_hub_r,
         foot_h_mm=foot_h, stretcher_y_mm=stretcher_y, stretcher_h_mm=stretcher_h,
         spacers_per_side=spacers, axial_play_mm=play,
+        shaft_through_support=spec.motor.shaft_length_mm > shaft_free + 1e-9,
         wheel_x_mm=wheel_x, gear_layers=layers, mount_x_mm=mount_x,
         pinion_y_mm=pinion_y, pinion_z_mm=pinion_z, centre_distance_mm=centre_distance_mm,
         base_x0_mm=base_x0, base_x1_mm=base_x1, base_half_y_mm=base_half_y,

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import json
 import time
+from pathlib import Path
 
 import click
 
@@ -16,8 +17,10 @@ from sheetgen.cli import set_option
 @click.option("-o", "--out", "out_dir", required=True, type=click.Path(file_okay=False),
               help="Folder to write into (replaced when complete).")
 @click.option("--dxf-version", type=click.Choice(["R2000", "R12"]), default="R2000", show_default=True)
+@click.option("--model/--no-model", default=True, show_default=True,
+              help="Build, check and write the 3D model (model/assembly.step, model/assembly.svg).")
 @set_option
-def command(params, kits, out_dir, dxf_version, overrides):
+def command(params, kits, out_dir, dxf_version, model, overrides):
     """Parts, nested sheets in cut order, report.html and summary.json for a production run.
 
     Without PARAMS it runs the demo parameters that ship with sheetgen.
@@ -37,6 +40,13 @@ def command(params, kits, out_dir, dxf_version, overrides):
         build = run_build(spec, kits, progress=progress)
     finally:
         progress.close()
+    assembly = None
+    if model:
+        from sheetgen.model3d import assemble, build_assembly
+
+        solids, check = assemble(build.kit, spec)
+        assembly = (solids, check)
+        build.summary["assembly"] = {k: v for k, v in check.to_json().items() if k not in ("timing_s", "occ_calls")}
     with staged_dir(out_dir) as tmp:
         (tmp / "parts").mkdir()
         (tmp / "sheets").mkdir()
@@ -46,7 +56,16 @@ def command(params, kits, out_dir, dxf_version, overrides):
         write_sheets(tmp / "sheets", [r.sheet for r in build.sheets], build.nest.sheet_size_mm,
                      build.nest.margin_mm, [cut_plan_contours(r.plan) for r in build.sheets], dxf_version)
         (tmp / "summary.json").write_text(json.dumps(build.summary, indent=2) + "\n", encoding="utf-8")
-        (tmp / "report.html").write_text(render_report(build), encoding="utf-8")
+        picture = None
+        if assembly is not None:
+            from sheetgen.io.step import assembly_svg, write_step
+
+            (tmp / "model").mkdir()
+            name = Path(spec.source).stem
+            write_step(build_assembly(assembly[0], name=name), tmp / "model" / "assembly.step")
+            picture = assembly_svg(assembly[0].bodies, f"sheetgen kit: {name}")
+            (tmp / "model" / "assembly.svg").write_text(picture, encoding="utf-8")
+        (tmp / "report.html").write_text(render_report(build, picture), encoding="utf-8")
     s = build.summary
     click.echo(f"{s['kits']} kit(s): {s['parts']} parts on {s['sheets']} sheet(s) "
                f"(area bound {s['area_lower_bound_sheets']}), utilisation "

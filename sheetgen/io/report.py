@@ -98,8 +98,8 @@ def render_report(build, assembly_svg: str | None = None) -> str:
     out += _bom(build)
     out += _gears(build)
     out += _cut_table(build)
-    if assembly_svg:
-        out += ["<h2>Assembled kit</h2>", f'<div class="model">{assembly_svg}</div>']
+    if "assembly" in build.summary:
+        out += _assembly(build.summary["assembly"], assembly_svg)
     out += ["<h2>Safety</h2>"]
     out += [f'<div class="caution"><b>{escape(k)}.</b> {escape(v)}</div>' for k, v in CAUTIONS]
     out += ["<p><small>Made by sheetgen from the parameters above. Figures marked as estimates rest on the "
@@ -138,6 +138,33 @@ def _checks(build):
     return ["<h2>Balance, torque and strength checks</h2>",
             _table(("check", "verdict", "why"), rows),
             _table(("figure", "value"), [(escape(k), escape(v)) for k, v in figures])]
+
+
+def _assembly(a: dict, picture: str | None):
+    ok = a.get("ok", False)
+    rows = [
+        ("solids", str(a["solid_count"])),
+        ("shared volume between parts", "none" if not a["interference"] else
+         f"{len(a['interference'])} pairs, up to {a['max_interference_mm3']:.2f} mm³"),
+        ("floating parts", "none" if not a["floating_parts"] else escape(", ".join(a["floating_parts"]))),
+        ("least clearance through the travel", f"{a['min_clearance_mm']:.2f} mm at {a['min_clearance_angle_deg']:g} deg"),
+        ("turning mass and CG from the solids", f"{a['mass_kg'] * 1000:.1f} g at ("
+         + ", ".join(f"{v:.1f}" for v in a["cg_mm"]) + ") mm"),
+    ]
+    if isinstance(a.get("frame_clearance"), dict):
+        fc = a["frame_clearance"]
+        need = a.get("frame_clearance_required_mm")
+        rows.append(("turning frame over the fixed parts", escape(
+            f"{fc['turning']} to {fc['fixed']}: {fc['distance_mm']:.2f} mm at {fc['angle_deg']:g} deg"
+            + (f" (frame.clearance {need:g} mm)" if need is not None else ""))))
+    out = ["<h2>Assembled kit (3D check)</h2>",
+           f"<div class=\"verdict {'ok' if ok else 'bad'}\">"
+           f"{'The 3D model assembles cleanly' if ok else 'The 3D model shows a fault'}</div>",
+           _table(("check", "result"), rows)]
+    if picture:
+        body = picture.split("?>", 1)[1] if picture.startswith("<?xml") else picture
+        out.append(f'<div class="model">{body}</div><p><small>The full model is model/assembly.step.</small></p>')
+    return out
 
 
 def _bom(build):

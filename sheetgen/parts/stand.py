@@ -4,13 +4,15 @@ from __future__ import annotations
 
 from sheetgen.geometry.joints import Edge
 from sheetgen.geometry.shapes import disc, hull, rect
-from sheetgen.layout import ANCHOR_HOLE_MM, Layout
+from sheetgen.errors import ParameterError
+from sheetgen.layout import ANCHOR_HOLE_MM, MOUNT_GAP_MM, Layout
 from sheetgen.part import place
 from sheetgen.parts import Blank, round_hole
 
 X, Y, Z = (1.0, 0.0, 0.0), (0.0, 1.0, 0.0), (0.0, 0.0, 1.0)
 MINUS_Y = (0.0, -1.0, 0.0)
 ANCHOR_INSET_MM = 8.0
+SHAFT_CLEARANCE_MM = 1.0  # diametral, round a motor shaft passing through a plate
 
 
 def base(spec, L: Layout, drive) -> Blank:
@@ -33,12 +35,21 @@ def axle_support(spec, L: Layout, drive) -> Blank:
     outline = hull(disc(0.0, 0.0, L.support_hub_r_mm), rect(-ys, -H, ys, -H + L.foot_h_mm))
     t = L.t_mm
     bearing = spec.axle.diameter_mm + spec.axle.bearing_clearance_mm
+    holes = [round_hole(0.0, 0.0, bearing)]
+    if L.shaft_through_support:
+        # a long motor shaft runs on into the support behind the pinion: give it room
+        d = spec.motor.shaft_diameter_mm + SHAFT_CLEARANCE_MM
+        if not outline.buffer(-2.0).contains(disc(L.pinion_y_mm, L.pinion_z_mm, d / 2)):
+            raise ParameterError(
+                f"motor.shaft_length = {spec.motor.shaft_length_mm:g}: the shaft would strike the edge of the axle "
+                f"support; must be at most {2 * t + MOUNT_GAP_MM + L.gear_layers * t:g} mm here")
+        holes.append(round_hole(L.pinion_y_mm, L.pinion_z_mm, d))
     return Blank(
         name="axle-support",
         outline=outline,
         placements=(place(Y, Z, (-L.support_x_mm - t, 0.0, 0.0)), place(Y, Z, (L.support_x_mm, 0.0, 0.0))),
         description="stands on the base and carries the axle in its bearing hole",
-        holes=(round_hole(0.0, 0.0, bearing),),
+        holes=tuple(holes),
         edges=(("foot", Edge((-ys, -H), (ys, -H), -1)),),
     )
 
@@ -73,7 +84,7 @@ def motor_mount(spec, L: Layout, drive) -> Blank:
     foot_h = max(2 * L.t_mm, 8.0)
     outline = hull(rect(py - half_w, pz - half_h, py + half_w, pz + half_h),
                    rect(py - half_w, -H, py + half_w, -H + foot_h))
-    shaft_hole = max(m.shaft_diameter_mm, m.boss_diameter_mm) + 1.0
+    shaft_hole = max(m.shaft_diameter_mm, m.boss_diameter_mm) + SHAFT_CLEARANCE_MM
     holes = [round_hole(py, pz, shaft_hole)]
     if m.screw_spacing_mm:
         holes += [round_hole(py + s * m.screw_spacing_mm / 2, pz, m.screw_diameter_mm) for s in (-1, 1)]
