@@ -79,7 +79,8 @@ def test_any_valid_parameter_set_builds_or_is_refused_clearly(width, height, t, 
     try:
         spec = load_spec(DEMO, [f"panel.width={width}", f"panel.height={height}", f"sheet.thickness={t}",
                                 f"laser.kerf={kerf}", f"joints.fit={fit}", "sheet.width=1200",
-                                "sheet.height=900", "motor.shaft_length=40"])
+                                "sheet.height=900", f"motor.shaft_length={3 * t + 1}",
+                                f"axle.height={0.7 * height + 50}"])
         kit = build_kit(spec)
     except ParameterError as exc:
         assert "\n" not in str(exc)
