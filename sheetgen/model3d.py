@@ -68,6 +68,7 @@ import shapely
 from shapely import affinity
 from shapely.geometry import MultiPoint, Polygon
 
+from sheetgen.numbers import sig
 from sheetgen.errors import GeometryBug, ParameterError
 from sheetgen.geometry.shapes import GRID_MM, disc, rect
 from sheetgen.kit import MESHING
@@ -514,66 +515,56 @@ class AssemblyReport:
         return {
             "ok": self.ok,
             "solid_count": len(self.solids),
-            "solids": [{"name": s.name, "source": s.source, "group": s.group, "volume_mm3": _r(s.volume_mm3),
-                        "mass_kg": _r(s.mass_kg)} for s in self.solids],
-            "interference": [{"a": i.a, "b": i.b, "volume_mm3": _r(i.volume_mm3)} for i in self.interference],
-            "max_interference_mm3": _r(self.max_interference_mm3),
+            "solids": [{"name": s.name, "source": s.source, "group": s.group, "volume_mm3": sig(s.volume_mm3),
+                        "mass_kg": sig(s.mass_kg)} for s in self.solids],
+            "interference": [{"a": i.a, "b": i.b, "volume_mm3": sig(i.volume_mm3)} for i in self.interference],
+            "max_interference_mm3": sig(self.max_interference_mm3),
             "floating_parts": list(self.floating_parts),
             "detached_parts": list(self.detached_parts),
             "tabs_ok": self.tabs_ok,
             "tabs": [{"tab_part": t.tab_part, "slot_part": t.slot_part, "tabs": t.tab_count,
-                      "expected_mm3": _r(t.expected_mm3), "found_mm3": _r(t.found_mm3),
+                      "expected_mm3": sig(t.expected_mm3), "found_mm3": sig(t.found_mm3),
                       "missing": list(t.missing), "ok": t.ok} for t in self.tabs],
-            "tracking_range_deg": [_r(self.tracking_range_deg[0]), _r(self.tracking_range_deg[1])],
-            "sweep_step_deg": _r(self.step_deg),
+            "tracking_range_deg": [sig(self.tracking_range_deg[0]), sig(self.tracking_range_deg[1])],
+            "sweep_step_deg": sig(self.step_deg),
             "sweep_angles": self.angles,
-            "min_clearance_mm": _r(self.min_clearance_mm),
-            "min_clearance_angle_deg": _r(self.min_clearance_angle_deg),
+            "min_clearance_mm": sig(self.min_clearance_mm),
+            "min_clearance_angle_deg": sig(self.min_clearance_angle_deg),
             "min_clearance_pair": ([worst.turning, worst.fixed] if worst else
                                    [self.closest[0].turning, self.closest[0].fixed] if self.closest else None),
             "closest": cl,
             "frame_clearance": None if self.frame_clearance is None else _clearance_json(self.frame_clearance),
-            "frame_clearance_required_mm": _r(self.frame_clearance_required_mm),
+            "frame_clearance_required_mm": sig(self.frame_clearance_required_mm),
             "frame_clearance_ok": self.frame_clearance_ok,
-            "collisions": [{"turning": c.turning, "fixed": c.fixed, "first_deg": _r(c.first_deg),
-                            "last_deg": _r(c.last_deg), "samples": c.samples,
-                            "nearest_rest_deg": _r(c.nearest_rest_deg), "worst_deg": _r(c.worst_deg),
-                            "worst_volume_mm3": _r(c.worst_volume_mm3)} for c in self.collisions],
-            "touching": [{"turning": t.turning, "fixed": t.fixed, "first_deg": _r(t.first_deg),
-                          "last_deg": _r(t.last_deg), "samples": t.samples} for t in self.touching],
-            "running_parts": [{"name": r.turning, "nearest_fixed": r.fixed, "gap_mm": _r(r.distance_mm)}
+            "collisions": [{"turning": c.turning, "fixed": c.fixed, "first_deg": sig(c.first_deg),
+                            "last_deg": sig(c.last_deg), "samples": c.samples,
+                            "nearest_rest_deg": sig(c.nearest_rest_deg), "worst_deg": sig(c.worst_deg),
+                            "worst_volume_mm3": sig(c.worst_volume_mm3)} for c in self.collisions],
+            "touching": [{"turning": t.turning, "fixed": t.fixed, "first_deg": sig(t.first_deg),
+                          "last_deg": sig(t.last_deg), "samples": t.samples} for t in self.touching],
+            "running_parts": [{"name": r.turning, "nearest_fixed": r.fixed, "gap_mm": sig(r.distance_mm)}
                               for r in self.running],
-            "mesh": [{"wheel": g.wheel, "pinion": g.pinion, "pinion_turn_deg": _r(g.pinion_turn_deg),
-                      "min_gap_mm": _r(g.min_gap_mm), "min_gap_deg": _r(g.min_gap_deg),
-                      "max_overlap_mm3": _r(g.max_overlap_mm3)} for g in self.mesh],
-            "mass_kg": _r(m.mass_kg),
-            "cg_mm": [_r(v) for v in m.cg_mm],
-            "mass_check": {"balance_mass_kg": _r(m.ref_mass_kg), "balance_cg_mm": [_r(v) for v in m.ref_cg_mm],
-                           "mass_deviation": _r(m.mass_deviation), "cg_deviation_mm": _r(m.cg_deviation_mm),
-                           "cg_tolerance_mm": _r(m.cg_tolerance_mm), "ok": m.ok},
-            "kit_mass_kg": _r(m.kit_mass_kg),
-            "kit_cg_mm": [_r(v) for v in m.kit_cg_mm],
+            "mesh": [{"wheel": g.wheel, "pinion": g.pinion, "pinion_turn_deg": sig(g.pinion_turn_deg),
+                      "min_gap_mm": sig(g.min_gap_mm), "min_gap_deg": sig(g.min_gap_deg),
+                      "max_overlap_mm3": sig(g.max_overlap_mm3)} for g in self.mesh],
+            "mass_kg": sig(m.mass_kg),
+            "cg_mm": [sig(v) for v in m.cg_mm],
+            "mass_check": {"balance_mass_kg": sig(m.ref_mass_kg), "balance_cg_mm": [sig(v) for v in m.ref_cg_mm],
+                           "mass_deviation": sig(m.mass_deviation), "cg_deviation_mm": sig(m.cg_deviation_mm),
+                           "cg_tolerance_mm": sig(m.cg_tolerance_mm), "ok": m.ok},
+            "kit_mass_kg": sig(m.kit_mass_kg),
+            "kit_cg_mm": [sig(v) for v in m.kit_cg_mm],
             "timing_s": {k: round(v, 3) for k, v in self.timing_s},
             "occ_calls": self.occ_calls,
         }
 
 
 def _clearance_json(c: Clearance) -> dict:
-    return {"turning": c.turning, "fixed": c.fixed, "distance_mm": _r(c.distance_mm), "angle_deg": _r(c.angle_deg),
-            "x_gap_mm": _r(c.x_gap_mm), "along_axle": abs(c.distance_mm - c.x_gap_mm) < 1e-6 and c.x_gap_mm > 0,
+    return {"turning": c.turning, "fixed": c.fixed, "distance_mm": sig(c.distance_mm), "angle_deg": sig(c.angle_deg),
+            "x_gap_mm": sig(c.x_gap_mm), "along_axle": abs(c.distance_mm - c.x_gap_mm) < 1e-6 and c.x_gap_mm > 0,
             "steady": c.steady}
 
 
-def _r(v, digits: int = 6):
-    """Round to ``digits`` significant figures; infinities and None become null."""
-    if v is None or isinstance(v, bool):
-        return v
-    v = float(v)
-    if not math.isfinite(v):
-        return None
-    if v == 0.0:
-        return 0.0
-    return float(f"{v:.{digits}g}")
 
 
 # ---------------------------------------------------------------------------

@@ -14,7 +14,6 @@ Sources named beside the checks:
 
 from __future__ import annotations
 
-import io
 import itertools
 import math
 import random

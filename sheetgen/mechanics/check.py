@@ -18,6 +18,7 @@ import numpy as np
 from shapely.geometry import Polygon, box
 from shapely.ops import unary_union
 
+from sheetgen.numbers import sig
 from sheetgen.errors import ParameterError
 from sheetgen.gears import LEWIS_Y_TABLE
 from sheetgen.mechanics import loads, solar
@@ -48,7 +49,7 @@ class Check:
     binding: bool = True  # counts toward ``ok``; advisory checks only inform
 
     def to_json(self) -> dict:
-        return {"name": self.name, "pass": self.passed, "value": _r(self.value), "limit": _r(self.limit),
+        return {"name": self.name, "pass": self.passed, "value": sig(self.value), "limit": sig(self.limit),
                 "unit": self.unit, "reason": self.reason, "binding": self.binding}
 
 
@@ -92,90 +93,90 @@ class BalanceReport:
         m, tr, d, t = self.mass, self.tracking, self.drive, self.tooth
         out = {
             "ok": self.ok,
-            "rotating_mass_kg": _r(m.rotating_mass_kg),
-            "cg_mm": [_r(v) for v in m.rotating_cg_mm],
-            "static_unbalance_gmm": _r(m.static_unbalance_gmm),
-            "cg_angle_deg": _r(m.cg_angle_deg),
-            "axle_tilt_deg": _r(self.axle_tilt_deg),
-            "tracking_range_deg": [_r(tr.range_deg[0]), _r(tr.range_deg[1])],
-            "gravity_torque_max_Nm": _r(self.gravity_torque_max_Nm),
-            "friction_torque_Nm": _r(self.friction_torque_Nm),
-            "wind_torque_Nm": _r(self.wind.torque_Nm),
-            "load_torque_Nm": _r(self.load_torque_Nm),
-            "gear_ratio": _r(d.gear_ratio),
-            "motor_torque_required_Nm": _r(d.motor_torque_required_Nm),
-            "motor_torque_available_Nm": _r(d.motor_torque_available_Nm),
-            "torque_margin": _r(d.torque_margin),
-            "tooth_stress_MPa": _r(t.stress_MPa),
-            "tooth_stress_allowable_MPa": _r(t.allowable_MPa),
+            "rotating_mass_kg": sig(m.rotating_mass_kg),
+            "cg_mm": [sig(v) for v in m.rotating_cg_mm],
+            "static_unbalance_gmm": sig(m.static_unbalance_gmm),
+            "cg_angle_deg": sig(m.cg_angle_deg),
+            "axle_tilt_deg": sig(self.axle_tilt_deg),
+            "tracking_range_deg": [sig(tr.range_deg[0]), sig(tr.range_deg[1])],
+            "gravity_torque_max_Nm": sig(self.gravity_torque_max_Nm),
+            "friction_torque_Nm": sig(self.friction_torque_Nm),
+            "wind_torque_Nm": sig(self.wind.torque_Nm),
+            "load_torque_Nm": sig(self.load_torque_Nm),
+            "gear_ratio": sig(d.gear_ratio),
+            "motor_torque_required_Nm": sig(d.motor_torque_required_Nm),
+            "motor_torque_available_Nm": sig(d.motor_torque_available_Nm),
+            "torque_margin": sig(d.torque_margin),
+            "tooth_stress_MPa": sig(t.stress_MPa),
+            "tooth_stress_allowable_MPa": sig(t.allowable_MPa),
             "counterweight": {
-                "mass_kg": _r(self.counterweight.mass_kg),
-                "position_mm": [_r(v) for v in self.counterweight.position_mm],
-                "arm_mm": _r(self.counterweight.arm_mm),
+                "mass_kg": sig(self.counterweight.mass_kg),
+                "position_mm": [sig(v) for v in self.counterweight.position_mm],
+                "arm_mm": sig(self.counterweight.arm_mm),
                 "rule": self.counterweight.rule,
                 "found": self.counterweight.found,
             },
-            "ballast_kg": _r(self.tipping.ballast_kg),
+            "ballast_kg": sig(self.tipping.ballast_kg),
             "checks": [c.to_json() for c in self.checks],
-            "total_mass_kg": _r(m.total_mass_kg),
-            "kit_cg_mm": [_r(v) for v in m.total_cg_mm],
+            "total_mass_kg": sig(m.total_mass_kg),
+            "kit_cg_mm": [sig(v) for v in m.total_cg_mm],
             "tracking": {
                 "axle": tr.axle,
-                "latitude_deg": _r(tr.latitude_deg),
-                "declination_deg": _r(tr.declination_deg),
-                "sunrise_hour_angle_deg": _r(tr.sunrise_hour_angle_deg),
-                "day_length_h": _r(tr.day_length_h),
-                "sunset_rotation_deg": _r(tr.sunset_rotation_deg),
-                "travel_limit_deg": _r(tr.travel_limit_deg),
+                "latitude_deg": sig(tr.latitude_deg),
+                "declination_deg": sig(tr.declination_deg),
+                "sunrise_hour_angle_deg": sig(tr.sunrise_hour_angle_deg),
+                "day_length_h": sig(tr.day_length_h),
+                "sunset_rotation_deg": sig(tr.sunset_rotation_deg),
+                "travel_limit_deg": sig(tr.travel_limit_deg),
                 "clipped": tr.clipped,
-                "tracked_hours_h": _r(tr.tracked_hours_h),
-                "peak_rate_deg_h": _r(tr.peak_rate_deg_h),
-                "sun_rate_deg_h": _r(tr.sun_rate_deg_h),
+                "tracked_hours_h": sig(tr.tracked_hours_h),
+                "peak_rate_deg_h": sig(tr.peak_rate_deg_h),
+                "sun_rate_deg_h": sig(tr.sun_rate_deg_h),
             },
-            "gravity_worst_rotation_deg": _r(self.gravity_worst_rotation_deg),
-            "bearing": {"radial_load_N": _r(self.radial_load_N), "axial_load_N": _r(self.axial_load_N)},
+            "gravity_worst_rotation_deg": sig(self.gravity_worst_rotation_deg),
+            "bearing": {"radial_load_N": sig(self.radial_load_N), "axial_load_N": sig(self.axial_load_N)},
             "wind": {
-                "area_m2": _r(self.wind.area_m2),
-                "chord_mm": _r(self.wind.chord_mm),
-                "eccentricity_mm": _r(self.wind.eccentricity_mm),
-                "force_N": _r(self.wind.force_N),
+                "area_m2": sig(self.wind.area_m2),
+                "chord_mm": sig(self.wind.chord_mm),
+                "eccentricity_mm": sig(self.wind.eccentricity_mm),
+                "force_N": sig(self.wind.force_N),
                 "air_density_kg_m3": loads.AIR_DENSITY_KG_M3,
                 "drag_coefficient": loads.FLAT_PLATE_CD,
             },
             "drive": {
-                "mesh_efficiency": _r(d.mesh_efficiency),
-                "motor_speed_at_load_rpm": _r(d.motor_speed_at_load_rpm),
-                "output_speed_deg_h": _r(d.output_speed_deg_h),
-                "output_speed_no_load_deg_h": _r(d.output_speed_no_load_deg_h),
+                "mesh_efficiency": sig(d.mesh_efficiency),
+                "motor_speed_at_load_rpm": sig(d.motor_speed_at_load_rpm),
+                "output_speed_deg_h": sig(d.output_speed_deg_h),
+                "output_speed_no_load_deg_h": sig(d.output_speed_no_load_deg_h),
             },
             "pulse": None if self.pulse is None else {
-                "energy_J": _r(self.pulse.energy_J),
-                "threshold_voltage_V": _r(self.pulse.threshold_voltage_V),
-                "motor_efficiency": _r(self.pulse.motor_efficiency),
-                "work_per_pulse_J": _r(self.pulse.work_per_pulse_J),
-                "angle_per_pulse_deg": _r(self.pulse.angle_per_pulse_deg),
-                "pulses_per_hour_peak": _r(self.pulse.pulses_per_hour_peak),
-                "pulses_per_hour_mean": _r(self.pulse.pulses_per_hour_mean),
+                "energy_J": sig(self.pulse.energy_J),
+                "threshold_voltage_V": sig(self.pulse.threshold_voltage_V),
+                "motor_efficiency": sig(self.pulse.motor_efficiency),
+                "work_per_pulse_J": sig(self.pulse.work_per_pulse_J),
+                "angle_per_pulse_deg": sig(self.pulse.angle_per_pulse_deg),
+                "pulses_per_hour_peak": sig(self.pulse.pulses_per_hour_peak),
+                "pulses_per_hour_mean": sig(self.pulse.pulses_per_hour_mean),
             },
             "tooth": {
                 "material": self.material,
-                "face_width_mm": _r(t.face_width_mm),
+                "face_width_mm": sig(t.face_width_mm),
                 "weaker_gear": t.weaker_gear,
-                "pinion_stress_MPa": _r(t.pinion_stress_MPa),
-                "wheel_stress_MPa": _r(t.wheel_stress_MPa),
-                "stall_stress_MPa": _r(t.stall_stress_MPa),
+                "pinion_stress_MPa": sig(t.pinion_stress_MPa),
+                "wheel_stress_MPa": sig(t.wheel_stress_MPa),
+                "stall_stress_MPa": sig(t.stall_stress_MPa),
             },
             "tipping": {
-                "wind_force_N": _r(self.tipping.wind_force_N),
-                "force_height_mm": _r(self.tipping.force_height_mm),
-                "cg_lever_mm": _r(self.tipping.cg_lever_mm),
-                "overturning_Nm": _r(self.tipping.overturning_Nm),
-                "restoring_Nm": _r(self.tipping.restoring_Nm),
-                "worst_rotation_deg": _r(self.tipping.worst_rotation_deg),
+                "wind_force_N": sig(self.tipping.wind_force_N),
+                "force_height_mm": sig(self.tipping.force_height_mm),
+                "cg_lever_mm": sig(self.tipping.cg_lever_mm),
+                "overturning_Nm": sig(self.tipping.overturning_Nm),
+                "restoring_Nm": sig(self.tipping.restoring_Nm),
+                "worst_rotation_deg": sig(self.tipping.worst_rotation_deg),
             },
             "parts": [
-                {"name": g.name, "kind": g.kind, "qty": g.qty, "mass_each_kg": _r(g.mass_each_kg),
-                 "mass_kg": _r(g.mass_kg), "rotating": g.rotating}
+                {"name": g.name, "kind": g.kind, "qty": g.qty, "mass_each_kg": sig(g.mass_each_kg),
+                 "mass_kg": sig(g.mass_kg), "rotating": g.rotating}
                 for g in m.groups
             ],
             "notes": list(self.notes),
@@ -184,17 +185,6 @@ class BalanceReport:
         return out
 
 
-def _r(v: float, digits: int = 6):
-    """Round to ``digits`` significant figures for stable, readable output;
-    infinities become null (JSON has none)."""
-    if v is None or isinstance(v, bool):
-        return v
-    v = float(v)
-    if not math.isfinite(v):
-        return None
-    if v == 0.0:
-        return 0.0
-    return float(f"{v:.{digits}g}")
 
 
 # ---------------------------------------------------------------------------
@@ -364,7 +354,7 @@ def balance_check(kit: Kit, spec) -> BalanceReport:
 def _checks(spec, mp, tr, g_max, load, df, pulse, tooth, tipping, cw, material_name) -> list[Check]:
     out = []
     share = g_max / load if load > 0 else 0.0
-    fix = (f"raise the gear ratio (drive.wheel_teeth / drive.pinion_teeth), use a stronger motor"
+    fix = ("raise the gear ratio (drive.wheel_teeth / drive.pinion_teeth), use a stronger motor"
            + (f", or balance the frame (gravity is {share:.0%} of the load: "
               f"{cw.mass_kg * 1000:.0f} g at {_pos(cw.position_mm)} mm)" if share > 0.2 and cw.found else ""))
     ok = df.motor_torque_required_Nm <= df.motor_torque_available_Nm
