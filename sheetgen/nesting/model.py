@@ -1,0 +1,67 @@
+"""Data of the nester: what goes in (:class:`NestItem`) and what comes out."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from shapely.geometry import Polygon
+
+
+@dataclass(frozen=True)
+class NestItem:
+    """A part to nest.
+
+    ``polygon`` is the CUT outline (kerf already applied) in any position; holes
+    are allowed and smaller parts may be nested inside them. ``rotations_deg``
+    lists the allowed turns (counter-clockwise, degrees).
+    """
+
+    name: str
+    polygon: Polygon
+    qty: int
+    rotations_deg: tuple[float, ...] = (0.0,)
+
+
+@dataclass(frozen=True)
+class PlacedPart:
+    """One copy on a sheet. The placed polygon is the item's polygon turned CCW
+    by ``angle_deg`` about (0, 0), then moved by (``x_mm``, ``y_mm``)."""
+
+    item: int
+    copy: int
+    x_mm: float
+    y_mm: float
+    angle_deg: float
+    polygon: Polygon
+
+
+@dataclass(frozen=True)
+class NestResult:
+    """A finished layout.
+
+    ``sheet_size_mm`` is (W, H) of the stock sheet, or in strip mode (strip
+    length used, strip width). ``utilisation`` is, per sheet, the area of the
+    placed cut outlines over the sheet (or used strip) area.
+    ``area_lower_bound_sheets`` is ceil(total part area / usable sheet area),
+    the fewest sheets any layout could use (1 in strip mode).
+
+    ``remnant_mm`` is the usable remnant of the last sheet: the full-height
+    rectangle (length along x, height along y) from the rightmost cut contour
+    of the last sheet plus the spacing to the sheet's right edge. It is
+    (0, H) when the last sheet is filled to the end, and None in strip mode,
+    where the strip ends at the last part.
+    """
+
+    sheets: tuple[tuple[PlacedPart, ...], ...]
+    unplaced: tuple[tuple[int, int], ...]
+    sheet_size_mm: tuple[float, float]
+    margin_mm: float
+    spacing_mm: float
+    strip_length_mm: float | None
+    utilisation: tuple[float, ...]
+    area_lower_bound_sheets: int
+    remnant_mm: tuple[float, float] | None
+
+    @property
+    def parts_placed(self) -> int:
+        return sum(len(s) for s in self.sheets)

@@ -1,0 +1,326 @@
+"""The nester: no-fit polygons, placement, sheets and strips, verification.
+
+Sources named beside each check. Geometric facts used:
+* Minkowski sum of two axis-parallel rectangles is the rectangle of the summed
+  sides (de Berg et al., Computational Geometry, ch. 13, from memory).
+* No-fit polygon definition: B moved by t overlaps A exactly when t is inside
+  A (+) (-B) (same source, from memory); checked against shapely's own
+  intersection test, an independent computation.
+* Strip and sheet lower bounds from total area (common practice).
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import math
+
+import numpy as np
+import pytest
+import shapely
+from hypothesis import given, settings
+from hypothesis import strategies as st
+from shapely import affinity
+from shapely.geometry import Point, Polygon, box
+
+from sheetgen.errors import GeometryBug, SheetgenError
+from sheetgen.nesting import NestItem, nest, verify
+from sheetgen.nesting.nfp import clearance_outline, no_fit_polygon
+
+TOL = 1e-6
+
+
+# ---------------------------------------------------------------- helpers
+
+def independent_check(result, items, margin, spacing):
+    """Our own reading of the layout, separate from verify(): inside the margin,
+    no overlap deeper than TOL, gaps at least the spacing, all parts there."""
+    w, h = result.sheet_size_mm
+    seen = set()
+    for sheet in result.sheets:
+        for p in sheet:
+            x0, y0, x1, y1 = p.polygon.bounds
+            assert x0 >= margin - TOL and y0 >= margin - TOL
+            assert x1 <= w - margin + TOL and y1 <= h - margin + TOL
+            assert abs(p.polygon.area - items[p.item].polygon.area) < 1e-6 * items[p.item].polygon.area
+            seen.add((p.item, p.copy))
+        for i, a in enumerate(sheet):
+            for b in sheet[i + 1:]:
+                if spacing > TOL:
+                    assert a.polygon.distance(b.polygon) >= spacing - TOL
+                else:
+                    assert not a.polygon.buffer(-TOL).intersects(b.polygon)
+    seen |= set(result.unplaced)
+    assert seen == {(i, c) for i, it in enumerate(items) for c in range(it.qty)}
+
+
+def frame(outer: float, window: float) -> Polygon:
+    o = box(0, 0, outer, outer)
+    m = (outer - window) / 2
+    return Polygon(o.exterior, [box(m, m, m + window, m + window).exterior])
+
+
+shape_kinds = st.sampled_from(["rect", "ell", "tri", "ring"])
+
+
+@st.composite
+def parts(draw):
+    kind = draw(shape_kinds)
+    w = draw(st.floats(5, 60))
+    h = draw(st.floats(5, 60))
+    if kind == "rect":
+        poly = box(0, 0, w, h)
+    elif kind == "ell":
+        poly = Polygon([(0, 0), (w, 0), (w, h / 3), (w / 3, h / 3), (w / 3, h), (0, h)])
+    elif kind == "tri":
+        poly = Polygon([(0, 0), (w, 0), (w * draw(st.floats(0, 1)), h)])
+    else:
+        poly = box(0, 0, w, h).difference(box(w / 4, h / 4, 3 * w / 4, 3 * h / 4))
+    angle = draw(st.floats(-180, 180))
+    poly = affinity.translate(affinity.rotate(poly, angle, origin=(0, 0)), draw(st.floats(-50, 50)),
+                              draw(st.floats(-50, 50)))
+    rots = draw(st.sampled_from([(0.0,), (0.0, 180.0), (0.0, 90.0, 180.0, 270.0), (0.0, 45.0)]))
+    return poly, draw(st.integers(1, 3)), rots
+
+
+# ---------------------------------------------------------------- no-fit polygons
+
+def test_nfp_of_rectangles_is_the_summed_rectangle():
+    # Source: Minkowski sum of boxes (de Berg et al., ch. 13, from memory).
+    a, b = box(0, 0, 30, 10), box(0, 0, 4, 7)
+    nfp = no_fit_polygon(a, b)
+    assert nfp.symmetric_difference(box(-4, -7, 30, 10)).area < 1e-9
+
+
+@settings(max_examples=15)
+@given(parts(), parts(), st.integers(0, 2**31))
+def test_nfp_agrees_with_the_overlap_test(pa, pb, seed):
+    # Source: the NFP definition, against shapely's intersection of the two
+    # polygons (independent computation), at random translations.
+    a, b = pa[0], pb[0]
+    nfp = no_fit_polygon(a, b)
+    rng = np.random.default_rng(seed)
+    x0, y0, x1, y1 = nfp.bounds
+    for x, y in rng.uniform((x0 - 2, y0 - 2), (x1 + 2, y1 + 2), size=(25, 2)):
+        pt = Point(x, y)
+        if nfp.boundary.distance(pt) < 1e-6:
+            continue
+        moved = affinity.translate(b, x, y)
+        assert (moved.intersection(a).area > 1e-9) == nfp.contains(pt)
+
+
+def test_nfp_with_spacing_keeps_the_gap():
+    # Source: definition of the clear gap; a square moved to the right of another.
+    a = b = box(0, 0, 1, 1)
+    s = 0.5
+    nfp = no_fit_polygon(a, b, spacing=s)
+    assert nfp.contains(Point(1 + s - 1e-3, 0))
+    assert not nfp.contains(Point(1 + s + 1e-2, 0))
+    # diagonal: the gap is round (corner to corner distance), within the arc tolerance
+    d = (1 + s / math.sqrt(2) + 0.02)
+    assert not nfp.contains(Point(d, d))
+
+
+def test_nfp_hole_where_a_small_part_fits_in_a_window():
+    # Source: NFP definition; a 20 mm square in a 50 mm window of a 100 mm frame.
+    nfp = no_fit_polygon(frame(100, 50), box(0, 0, 20, 20))
+    assert len(nfp.interiors) == 1
+    hole = Polygon(nfp.interiors[0])
+    assert hole.symmetric_difference(box(25, 25, 55, 55)).area < 1e-9
+
+
+def test_clearance_outline_covers_a_finely_drawn_gear():
+    # Source: construction (outward coarsening): the outline must contain the
+    # part grown by half the spacing, with few vertices.
+    n = 400
+    ang = np.linspace(0, 2 * np.pi, n, endpoint=False)
+    r = 30 + 2 * (np.arange(n) % 10 < 5)
+    gear = Polygon(np.c_[r * np.cos(ang), r * np.sin(ang)])
+    out = clearance_outline(gear, 1.5)
+    assert out.covers(gear.buffer(1.5, quad_segs=32))
+    assert shapely.get_num_coordinates(out) <= 60
+
+
+# ---------------------------------------------------------------- layouts
+
+@settings(max_examples=12)
+@given(st.lists(parts(), min_size=1, max_size=5), st.floats(0, 8), st.floats(0, 4), st.integers(0, 3))
+def test_random_parts_are_nested_without_overlap(specs, margin, spacing, seed):
+    # Source: the rules of the issue (inside the margin, spacing kept, no overlap),
+    # read independently of verify().
+    items = [NestItem(f"p{i}", poly, qty, rots) for i, (poly, qty, rots) in enumerate(specs)]
+    size = max(max(p.bounds[2] - p.bounds[0], p.bounds[3] - p.bounds[1]) for p, _, _ in specs)
+    sheet = (size + 2 * margin + 40, size + 2 * margin + 10)
+    result = nest(items, sheet_mm=sheet, margin_mm=margin, spacing_mm=spacing, time_limit_s=0.1, seed=seed)
+    verify(result, items)
+    independent_check(result, items, margin, spacing)
+    assert not result.unplaced
+
+
+@settings(max_examples=12)
+@given(st.floats(20, 80), st.floats(0, 3), st.floats(0.2, 0.99))
+def test_small_part_goes_into_the_window_of_a_frame(window, spacing, fill):
+    # Source: the issue (parts inside the holes of other parts). The sheet is
+    # exactly the frame; the square fits the window with the spacing on all sides.
+    outer = window + 30
+    side = (window - 2 * spacing) * fill
+    items = [NestItem("frame", frame(outer, window), 1, (0.0,)), NestItem("square", box(0, 0, side, side), 1, (0.0,))]
+    result = nest(items, sheet_mm=(outer, outer), spacing_mm=spacing, time_limit_s=0.1)
+    verify(result, items)
+    assert len(result.sheets) == 1
+    fr = next(p for p in result.sheets[0] if p.item == 0)
+    sq = next(p for p in result.sheets[0] if p.item == 1)
+    assert Polygon(fr.polygon.interiors[0]).buffer(TOL).contains(sq.polygon)
+
+
+def test_square_too_big_for_the_window_takes_a_second_sheet():
+    # Source: arithmetic: 50 mm window, 2 mm spacing: room for 46 mm, not 47.
+    items = [NestItem("frame", frame(80, 50), 1, (0.0,)), NestItem("square", box(0, 0, 47, 47), 1, (0.0,))]
+    result = nest(items, sheet_mm=(80, 80), spacing_mm=2, time_limit_s=0.1)
+    verify(result, items)
+    assert len(result.sheets) == 2
+    assert result.area_lower_bound_sheets == 1
+
+
+def test_strip_of_rectangles_reaches_the_area_bound():
+    # Source: area / width lower bound (common practice): 4 x (10 x 20) in a
+    # 20-wide strip tile exactly, length 40.
+    items = [NestItem("r", box(0, 0, 20, 10), 4, (0.0, 90.0))]
+    result = nest(items, strip_width_mm=20, time_limit_s=0.2)
+    verify(result, items)
+    assert result.strip_length_mm == pytest.approx(40.0, abs=1e-5)
+    assert result.sheet_size_mm == (pytest.approx(40.0, abs=1e-5), 20.0)
+    assert result.utilisation[0] == pytest.approx(1.0, abs=1e-5)
+    assert result.remnant_mm is None
+
+
+def test_strip_mode_with_margin():
+    # Source: definitions (length = rightmost contour + margin).
+    items = [NestItem("r", box(0, 0, 10, 10), 3, (0.0,))]
+    result = nest(items, strip_width_mm=30, margin_mm=5, spacing_mm=1, time_limit_s=0.1)
+    verify(result, items)
+    independent_check(result, items, 5, 1)
+    # usable width 30 - 2 x 5 = 20 holds one 10 mm square across (10 + 1 + 10 > 20): a row of three
+    assert result.strip_length_mm == pytest.approx(5 + 10 + 1 + 10 + 1 + 10 + 5, abs=1e-5)
+
+
+def test_sheets_remnant_and_lower_bound():
+    # Source: area bound (common practice): 6 squares of 30 mm on 100 x 50: 5400 mm2
+    # over a usable 5000 mm2 -> at least 2 sheets; only 3 fit per sheet.
+    items = [NestItem("sq", box(0, 0, 30, 30), 6, (0.0,))]
+    result = nest(items, sheet_mm=(100, 50), spacing_mm=2, time_limit_s=0.1)
+    verify(result, items)
+    assert result.area_lower_bound_sheets == 2
+    assert len(result.sheets) == 2
+    assert [len(s) for s in result.sheets] == [3, 3]
+    # remnant: the full-height strip after the last part plus the spacing
+    assert result.remnant_mm == pytest.approx((100 - (30 * 3 + 2 * 2) - 2, 50))
+    assert result.utilisation == pytest.approx((2700 / 5000, 2700 / 5000))
+
+
+def test_same_seed_same_layout_and_progress_reported():
+    # Source: the issue (deterministic for a given seed); progress in [0, 1].
+    items = [NestItem("ell", Polygon([(0, 0), (30, 0), (30, 10), (10, 10), (10, 30), (0, 30)]), 5,
+                      (0.0, 90.0, 180.0, 270.0)), NestItem("tri", Polygon([(0, 0), (25, 0), (0, 20)]), 4, (0.0, 180.0))]
+    seen = []
+    a = nest(items, sheet_mm=(80, 60), spacing_mm=1, time_limit_s=0.3, seed=7,
+             progress=lambda f, msg: seen.append((f, msg)))
+    b = nest(items, sheet_mm=(80, 60), spacing_mm=1, time_limit_s=0.3, seed=7)
+    key = lambda r: [[(p.item, p.copy, p.x_mm, p.y_mm, p.angle_deg) for p in s] for s in r.sheets]  # noqa: E731
+    assert key(a) == key(b)
+    assert seen and all(0.0 <= f <= 1.0 for f, _ in seen) and seen[-1][0] == 1.0
+
+
+def test_placed_polygon_follows_the_documented_transform():
+    # Source: the convention of the ESICUP README (turn CCW about (0, 0), then move).
+    poly = Polygon([(3, 1), (13, 1), (13, 4), (3, 4)])
+    items = [NestItem("bar", poly, 1, (90.0,))]
+    result = nest(items, sheet_mm=(20, 20), time_limit_s=0)
+    p = result.sheets[0][0]
+    expect = affinity.translate(affinity.rotate(poly, p.angle_deg, origin=(0, 0)), p.x_mm, p.y_mm)
+    assert p.angle_deg == 90.0
+    assert shapely.hausdorff_distance(expect, p.polygon) < 1e-9
+
+
+# ---------------------------------------------------------------- bad input
+
+def test_part_larger_than_the_sheet_is_named_with_both_sizes():
+    items = [NestItem("base plate", box(0, 0, 300, 120), 1, (0.0, 90.0))]
+    with pytest.raises(SheetgenError, match=r"base plate.*300 x 120 mm.*190 x 190 mm.*200 x 200 mm"):
+        nest(items, sheet_mm=(200, 200), margin_mm=5)
+
+
+@pytest.mark.parametrize("qty", [0, -2, 1.5])
+def test_bad_quantity_refused(qty):
+    with pytest.raises(SheetgenError, match="quantity"):
+        nest([NestItem("p", box(0, 0, 1, 1), qty, (0.0,))], sheet_mm=(10, 10))
+
+
+@pytest.mark.parametrize("kw", [dict(), dict(sheet_mm=(10, 10), strip_width_mm=10),
+                                dict(sheet_mm=(10, 10), spacing_mm=-1), dict(sheet_mm=(10, 10), margin_mm=5),
+                                dict(sheet_mm=(0, 10))])
+def test_bad_options_refused(kw):
+    with pytest.raises(SheetgenError):
+        nest([NestItem("p", box(0, 0, 1, 1), 1, (0.0,))], **kw)
+
+
+# ---------------------------------------------------------------- verify() catches broken layouts
+
+@pytest.fixture(scope="module")
+def good():
+    items = [NestItem("a", box(0, 0, 20, 10), 2, (0.0,)), NestItem("b", Polygon([(0, 0), (15, 0), (0, 15)]), 2, (0.0,))]
+    result = nest(items, sheet_mm=(100, 60), margin_mm=5, spacing_mm=2, time_limit_s=0)
+    verify(result, items)
+    return result, items
+
+
+def _moved(p, dx, dy):
+    return dataclasses.replace(p, x_mm=p.x_mm + dx, y_mm=p.y_mm + dy, polygon=affinity.translate(p.polygon, dx, dy))
+
+
+def _with_sheet(result, sheet):
+    return dataclasses.replace(result, sheets=(tuple(sheet),) + result.sheets[1:])
+
+
+def test_verify_catches_overlap(good):
+    result, items = good
+    s = list(result.sheets[0])
+    a, b = s[0], s[1]
+    s[1] = _moved(b, a.polygon.centroid.x - b.polygon.centroid.x, a.polygon.centroid.y - b.polygon.centroid.y)
+    with pytest.raises(GeometryBug, match="overlap|apart"):
+        verify(_with_sheet(result, s), items)
+
+
+def test_verify_catches_part_outside_the_margin(good):
+    result, items = good
+    s = list(result.sheets[0])
+    s[0] = _moved(s[0], -(s[0].polygon.bounds[0] - 4.0), 0)  # 1 mm into the 5 mm margin
+    with pytest.raises(GeometryBug, match="usable area"):
+        verify(_with_sheet(result, s), items)
+
+
+def test_verify_catches_parts_too_close(good):
+    result, items = good
+    s = list(result.sheets[0])
+    # put part 1 exactly 1 mm (half the spacing) right of part 0
+    a, b = s[0], s[1]
+    s[1] = _moved(b, a.polygon.bounds[2] + 1.0 - b.polygon.bounds[0], a.polygon.bounds[1] - b.polygon.bounds[1])
+    assert a.polygon.distance(s[1].polygon) == pytest.approx(1.0)
+    with pytest.raises(GeometryBug, match="apart|overlap"):
+        verify(_with_sheet(result, s), items)
+
+
+def test_verify_catches_missing_and_doubled_parts(good):
+    result, items = good
+    s = list(result.sheets[0])
+    with pytest.raises(GeometryBug, match="neither placed nor"):
+        verify(_with_sheet(result, s[1:]), items)
+    with pytest.raises(GeometryBug, match="twice"):
+        verify(_with_sheet(result, s + [s[0]]), items)
+
+
+def test_verify_catches_a_polygon_that_does_not_match_its_transform(good):
+    result, items = good
+    s = list(result.sheets[0])
+    s[0] = dataclasses.replace(s[0], x_mm=s[0].x_mm + 0.5)
+    with pytest.raises(GeometryBug, match="transform"):
+        verify(_with_sheet(result, s), items)
