@@ -173,7 +173,7 @@ def test_rotating_mass_errors(doc):
     (("drive", "pulse_voltage", 0), r"drive\.pulse_capacitance and drive\.pulse_voltage"),
     (("frame", "ledge", 39), r"frame\.ledge = 39: must be less than a third"),
     (("motor", "screw_spacing", 6), r"motor\.screw_spacing = 6: the screw holes would cut into the shaft hole"),
-    ((("sheet", "height", 140), ("sheet", "margin", 50)), r"sheet\.margin = 50: leaves 300 x 40 mm"),
+    ((("sheet", "height", 140), ("sheet", "margin", 50)), r"sheet\.margin = 50: leaves 500 x 40 mm"),
 ])
 def test_cross_field_rules(doc, edit, pattern):
     edits = edit if isinstance(edit[0], tuple) else (edit,)
