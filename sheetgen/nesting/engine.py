@@ -219,18 +219,24 @@ def _used_x(d: Decoded) -> float:
     return max((sh.x_max for sh in st.sheets), default=0.0)
 
 
-def _strip_search(lib, part_items, usable, orders, work, budget, rng, clock, build_share, search_progress):
-    open_dec = Decoder(lib, part_items, usable, 1, work)
+def _first_layout(dec, orders, work, budget, clock, build_share, key):
+    """Decode the starting orders (all of them, or until the budget is spent) and keep the best by ``key``."""
     best = None
-    # "lowest first" rules would lay an open strip out in one long row: not as a start
-    orders = [(plan, rule) for plan, rule in orders if RULES[rule][0] <= 1.0]
     for k, (plan, rule) in enumerate(orders):
         if k > 0 and work.units >= budget:
             break
-        d = open_dec.decode(plan, rule, progress=(lambda f, k=k: clock.report(build_share * (k + f) / len(orders),
-                                                                             "first layout")))
-        if best is None or _used_x(d) < _used_x(best):
+        d = dec.decode(plan, rule, progress=(lambda f, k=k: clock.report(build_share * (k + f) / len(orders),
+                                                                        "first layout")))
+        if best is None or key(d) < key(best):
             best = d
+    return best
+
+
+def _strip_search(lib, part_items, usable, orders, work, budget, rng, clock, build_share, search_progress):
+    open_dec = Decoder(lib, part_items, usable, 1, work)
+    # "lowest first" rules would lay an open strip out in one long row: not as a start
+    orders = [(plan, rule) for plan, rule in orders if RULES[rule][0] <= 1.0]
+    best = _first_layout(open_dec, orders, work, budget, clock, build_share, _used_x)
     return _shrink(lib, part_items, usable, best, work, budget, rng, clock, search_progress)
 
 
@@ -260,19 +266,12 @@ def _shrink(lib, part_items, usable, best, work, budget, rng, clock, search_prog
 def _sheet_search(lib, part_items, usable, lower, orders, work, budget, rng, clock, build_share, search_progress):
     n = len(part_items)
     dec = Decoder(lib, part_items, usable, n, work)
-    best = None
 
     def key(d: Decoded):
         st = d.final
         return (len(st.unplaced), len(st.sheets), st.sheets[-1].area if st.sheets else 0.0)
 
-    for k, (plan, rule) in enumerate(orders):
-        if k > 0 and work.units >= budget:
-            break
-        d = dec.decode(plan, rule, progress=(lambda f, k=k: clock.report(build_share * (k + f) / len(orders),
-                                                                        "first layout")))
-        if best is None or key(d) < key(best):
-            best = d
+    best = _first_layout(dec, orders, work, budget, clock, build_share, key)
     # fewer sheets: every part must fit on one sheet fewer
     while len(best.final.sheets) > lower and work.units < budget and not clock.stop():
         fewer = Decoder(lib, part_items, usable, len(best.final.sheets) - 1, work)

@@ -101,6 +101,17 @@ def _polygon_of(el, path: Path) -> Polygon:
     return poly
 
 
+def _stored_fits(root, section: str, tag: str, polygons) -> list[StoredNfp]:
+    """The stored no-fit (``nfps``/``nfp``) or inner-fit (``ifps``/``ifp``) polygons."""
+    out = []
+    el = _child(root, section)
+    for fit in _children(el, tag) if el is not None else []:
+        st, orb, res = _child(fit, "staticPolygon"), _child(fit, "orbitingPolygon"), _child(fit, "resultingPolygon")
+        out.append(StoredNfp(st.get("idPolygon"), float(st.get("angle", 0)), orb.get("idPolygon"),
+                             float(orb.get("angle", 0)), polygons[res.get("idPolygon")]))
+    return out
+
+
 def read_esicup_xml(path: str | Path) -> Instance:
     """Read an ESICUP XML instance with its stored NFPs and recorded solutions."""
     path = Path(path)
@@ -152,19 +163,8 @@ def read_esicup_xml(path: str | Path) -> Instance:
         ids.append(piece.get("id"))
         poly_ids.append(pid)
 
-    nfps = []
-    nfps_el = _child(root, "nfps")
-    for nfp in _children(nfps_el, "nfp") if nfps_el is not None else []:
-        st, orb, res = _child(nfp, "staticPolygon"), _child(nfp, "orbitingPolygon"), _child(nfp, "resultingPolygon")
-        nfps.append(StoredNfp(st.get("idPolygon"), float(st.get("angle", 0)), orb.get("idPolygon"),
-                              float(orb.get("angle", 0)), polygons[res.get("idPolygon")]))
-
-    ifps = []
-    ifps_el = _child(root, "ifps")
-    for ifp in _children(ifps_el, "ifp") if ifps_el is not None else []:
-        st, orb, res = _child(ifp, "staticPolygon"), _child(ifp, "orbitingPolygon"), _child(ifp, "resultingPolygon")
-        ifps.append(StoredNfp(st.get("idPolygon"), float(st.get("angle", 0)), orb.get("idPolygon"),
-                              float(orb.get("angle", 0)), polygons[res.get("idPolygon")]))
+    nfps = _stored_fits(root, "nfps", "nfp", polygons)
+    ifps = _stored_fits(root, "ifps", "ifp", polygons)
 
     solutions = []
     sols = _child(root, "solutions")
