@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-from pathlib import Path
 
 import click
 
@@ -27,12 +26,13 @@ def command(thickness: float, square: float, output: str, dxf_version: str) -> N
     without kerf compensation; after cutting, measure the square and run
     `sheetgen kerf`."""
     from sheetgen.coupon import coupon_dxf_bytes, make_coupon, width_label
+    from sheetgen.io.output import staged_file
 
     coupon = make_coupon(thickness, square)
     data = coupon_dxf_bytes(coupon, dxf_version)
-    path = Path(output)
     try:
-        path.write_bytes(data)
+        with staged_file(output) as tmp:
+            tmp.write_bytes(data)
     except OSError as exc:
         raise InputFileError(f"-o {output}: cannot be written ({exc.strerror or exc})") from None
     w, h = coupon.size_mm

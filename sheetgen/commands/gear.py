@@ -2,8 +2,6 @@
 
 from __future__ import annotations
 
-import os
-from pathlib import Path
 
 import click
 
@@ -62,6 +60,7 @@ def command(module_mm, teeth, pressure_angle_deg, shift, backlash_mm, bore_mm, b
     from sheetgen.gears import GearSpec, Hub, gear_blank
     from sheetgen.geometry.involute import DEFAULT_CHORD_TOL_MM
     from sheetgen.io.dxf import write_cut_dxf
+    from sheetgen.io.output import staged_file
 
     tol = DEFAULT_CHORD_TOL_MM if chord_tol_mm is None else chord_tol_mm
     spec = GearSpec(module_mm=module_mm, teeth=teeth, pressure_angle_deg=pressure_angle_deg, shift=shift,
@@ -70,17 +69,11 @@ def command(module_mm, teeth, pressure_angle_deg, shift, backlash_mm, bore_mm, b
                             lightening=lightening))
     g = gear_blank(spec, kerf_mm, tol, labels=OPTION_LABELS)
 
-    path = Path(output)
-    tmp = path.with_name(f".{path.name}.part")
     try:
-        write_cut_dxf(tmp, [g.polygon], circles=g.round_holes_mm, circle_offset_mm=kerf_mm / 2.0,
-                      dxf_version=dxf_version)
-        os.replace(tmp, path)
+        with staged_file(output) as tmp:
+            write_cut_dxf(tmp, [g.polygon], circles=g.round_holes_mm, circle_offset_mm=kerf_mm / 2.0,
+                          dxf_version=dxf_version)
     except OSError as exc:
-        try:
-            tmp.unlink()
-        except OSError:
-            pass
         raise InputFileError(f"-o {output}: cannot be written ({exc.strerror or exc})") from None
 
     for w in g.warnings:
