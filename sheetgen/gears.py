@@ -318,13 +318,7 @@ def _max_shift_before_pointed(spec: GearSpec) -> float:
 
     if half(hi) > 0:
         return hi
-    for _ in range(60):
-        mid = 0.5 * (lo + hi)
-        if half(mid) > 0:
-            lo = mid
-        else:
-            hi = mid
-    return lo
+    return inv_m.bisect(lambda x: half(x) > 0, lo, hi, 60)[0]
 
 
 def _undercut_limit(alpha_deg: float, shift: float) -> float:

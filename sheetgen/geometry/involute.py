@@ -353,6 +353,18 @@ def tooth_form(module_mm: float, teeth: int, pressure_angle_deg: float, shift: f
     return ToothForm(undercut=True, beta_end=beta_x, gamma_start=gamma_start, **base)
 
 
+def bisect(on_low_side, lo: float, hi: float, steps: int) -> tuple[float, float]:
+    """Halve [lo, hi] ``steps`` times around the point where ``on_low_side``
+    turns from True (at lo) to False (at hi); returns the last bracket."""
+    for _ in range(steps):
+        mid = 0.5 * (lo + hi)
+        if on_low_side(mid):
+            lo = mid
+        else:
+            hi = mid
+    return lo, hi
+
+
 def _undercut_crossing(tf: ToothForm) -> tuple[float, float]:
     """Where the fillet envelope cuts into the involute (undercut gears).
 
@@ -377,14 +389,8 @@ def _undercut_crossing(tf: ToothForm) -> tuple[float, float]:
     r = np.hypot(pts[:, 0], pts[:, 1])
     up = np.nonzero((r[:-1] < tf.r_base) & (r[1:] >= tf.r_base))[0]
     if len(up):
-        lo, hi = beta[up[-1]], beta[up[-1] + 1]      # r(lo) < r_base <= r(hi)
-        for _ in range(80):
-            mid = 0.5 * (lo + hi)
-            if radius(mid) < tf.r_base:
-                lo = mid
-            else:
-                hi = mid
-        beta_b = hi
+        # r(lo) < r_base <= r(hi)
+        _, beta_b = bisect(lambda b: radius(b) < tf.r_base, beta[up[-1]], beta[up[-1] + 1], 80)
     else:
         beta_b = math.pi
     beta = np.linspace(beta_b, tf.beta_end, 4001)
@@ -401,13 +407,7 @@ def _undercut_crossing(tf: ToothForm) -> tuple[float, float]:
         # The fillet meets the base circle at or outside the involute's cusp:
         # join it there to the involute's start.
         return beta_b, tf.r_base
-    lo, hi = beta[best], beta[best + 1]              # g(lo) > 0 >= g(hi)
-    for _ in range(80):
-        mid = 0.5 * (lo + hi)
-        if gfun(mid) > 0:
-            lo = mid
-        else:
-            hi = mid
+    lo, hi = bisect(lambda b: gfun(b) > 0, beta[best], beta[best + 1], 80)  # g(lo) > 0 >= g(hi)
     b = 0.5 * (lo + hi)
     return b, max(radius(b), tf.r_base)
 
