@@ -39,14 +39,13 @@ def run_build(spec, kits: int, progress=None) -> BuildResult:
     from sheetgen.kit import build_kit
     from sheetgen.mechanics.check import balance_check
     from sheetgen.nesting import nest, verify
-    from sheetgen.parts.drive import drive_pair
     from sheetgen.production import kit_items, placed_sheets
 
     if kits < 1:
         raise ParameterError(f"--kits {kits}: must be a whole number >= 1")
     kit = build_kit(spec)
     balance = balance_check(kit, spec)
-    drive = drive_pair(spec)
+    drive = kit.drive
     items, sources = kit_items(kit, spec.laser.kerf_mm, kits)
     sheet_mm = (spec.sheet.width_mm, spec.sheet.height_mm)
     result = nest(items, sheet_mm=sheet_mm, margin_mm=spec.sheet.margin_mm, spacing_mm=spec.nest.spacing_mm,

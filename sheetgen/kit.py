@@ -59,6 +59,7 @@ def build_kit(spec, *, check_clearance: bool = True) -> Kit:
         components=_components(spec, layout),
         joints=tuple(joints),
         figures=_figures(spec, layout, drive),
+        drive=drive,
     )
     _check_fits_sheet(spec, kit)
     if check_clearance:

@@ -228,6 +228,8 @@ class Kit:
     joints: tuple[Joint, ...] = ()
     # Named figures the factories decided (axle height, sweep radius, ...), mm.
     figures: tuple[tuple[str, float], ...] = field(default=())
+    # The drive gear pair (sheetgen.gears.GearPair) the wheel and pinion were cut from.
+    drive: object = None
 
     def part(self, name: str) -> Part:
         for p in self.parts:
