@@ -293,7 +293,7 @@ def test_sweep_bound_never_exceeds_the_3d_distance(kits):
     import cadquery as cq
     from OCP.BRepExtrema import BRepExtrema_DistShapeShape
 
-    from sheetgen.model3d import _Measures, distance_bound_mm
+    from sheetgen.model3d.measures import _Measures, distance_bound_mm
 
     meas = _Measures(model)
     # (turning, fixed): plates across/across the axle, along/along, across/along, box/along, along/across

@@ -51,7 +51,8 @@ def main() -> None:
               + f" {t_step:6.2f} {t_svg:6.2f} {total:6.2f} {report.occ_calls:5d}")
         last = (model, report)
 
-    from sheetgen.model3d import _occ_distance, _shell, distance_bound_mm
+    from sheetgen.model3d.measures import distance_bound_mm
+    from sheetgen.model3d.solids import _occ_distance, _shell
 
     model, report = last
     print("\none distance, wheel#1 to motor-mount#1 (large kit): seconds")

@@ -1,0 +1,312 @@
+"""Pure model of the kit in 3D: prisms with placements, bodies, and the exact
+formulas for prisms on parallel axes (no cadquery; see the package notes)."""
+
+from __future__ import annotations
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+import shapely
+from shapely import affinity
+from shapely.geometry import MultiPoint, Polygon
+
+from sheetgen.errors import GeometryBug, ParameterError
+from sheetgen.geometry.shapes import GRID_MM, disc, rect
+from sheetgen.kit import MESHING
+from sheetgen.part import Component, Kit, Placement, place
+
+
+CONTACT_TOL_MM = 1e-3  # closer than this counts as touching
+SHARED_VOLUME_TOL_MM3 = 1e-3  # more shared volume than this is an interference
+MASS_TOL = 0.005  # solids vs the balance check: mass and CG within 0.5 %
+SWEEP_STEP_DEG = 1.0
+MAX_SWEEP_STEP_DEG = 2.0
+ROUND_TOL_MM = 1e-4  # ring vertices this close to one circle about the axle: the part turns in place
+CLOSEST_PAIRS = 5  # clearance pairs listed in the report
+MOTOR = "motor"  # the kit component that carries the pinion on its shaft
+_AXIS_TOL = 1e-9
+
+Y, Z = (0.0, 1.0, 0.0), (0.0, 0.0, 1.0)
+
+
+
+# ---------------------------------------------------------------------------
+# pure model
+
+
+@dataclass(frozen=True)
+class Prism:
+    """A polygon in a local x-y plane swept along local +z by ``depth_mm``,
+    carried into the kit frame (rotation 0) by ``placement``."""
+
+    outline: Polygon
+    depth_mm: float
+    placement: Placement
+
+    @property
+    def axis(self) -> np.ndarray:
+        return self.placement.matrix[:, 2]
+
+    @property
+    def axial(self) -> bool:
+        """Swept along the axle (x): the plate lies across the axle."""
+        return abs(abs(float(self.axis[0])) - 1.0) < _AXIS_TOL
+
+    def turned(self, angle_deg: float) -> "Prism":
+        return Prism(self.outline, self.depth_mm, self.placement.turned(angle_deg))
+
+    def corners(self) -> np.ndarray:
+        """Exterior vertices on both faces, in the kit frame."""
+        xy = np.asarray(self.outline.exterior.coords[:-1], dtype=float)
+        local = np.vstack([np.column_stack([xy, np.zeros(len(xy))]),
+                           np.column_stack([xy, np.full(len(xy), self.depth_mm)])])
+        return self.placement.apply(local)
+
+    def x_range_mm(self) -> tuple[float, float]:
+        c = self.corners()
+        return float(c[:, 0].min()), float(c[:, 0].max())
+
+    def yz_projection(self) -> Polygon:
+        """The prism seen along x: its outline for an axial prism (exact), else
+        the convex hull of its corners (contains the true projection)."""
+        if self.axial:
+            m = self.placement.matrix
+            t = self.placement.translation_mm
+            return affinity.affine_transform(self.outline, [m[1, 0], m[1, 1], m[2, 0], m[2, 1], t[1], t[2]])
+        hull = MultiPoint([tuple(p) for p in self.corners()[:, 1:]]).convex_hull
+        if not isinstance(hull, Polygon):  # a plate seen exactly edge-on along x and along its own thickness
+            hull = hull.buffer(1e-9)
+        return hull
+
+
+@dataclass(frozen=True)
+class Body:
+    """One solid of the model: a part instance (``rib#1``) or a component."""
+
+    name: str
+    source: str  # part name or component name
+    kind: str  # "part" or "component"
+    rotating: bool
+    pieces: tuple[Prism, ...]
+    material: str = ""  # sheet material key (parts)
+    mass_kg: float | None = None  # components: as given in the kit
+
+    def aabb(self) -> tuple[np.ndarray, np.ndarray]:
+        pts = np.vstack([p.corners() for p in self.pieces])
+        return pts.min(axis=0), pts.max(axis=0)
+
+    def x_range_mm(self) -> tuple[float, float]:
+        lo, hi = self.aabb()
+        return float(lo[0]), float(hi[0])
+
+
+def spun(placement: Placement, angle_deg: float) -> Placement:
+    """The placement after turning the part about its own local z axis (through its local origin)."""
+    a = math.radians(angle_deg)
+    c, s = math.cos(a), math.sin(a)
+    rz = np.array([[c, -s, 0.0], [s, c, 0.0], [0.0, 0.0, 1.0]])
+    r = placement.matrix @ rz
+    return Placement(tuple(tuple(float(v) for v in row) for row in r), placement.translation_mm, placement.rotating)
+
+
+def mesh_turn_deg(wheel_teeth: int, pinion_teeth: int, wheel_at: Placement, pinion_at: Placement) -> float:
+    """How far to turn the pinion about its own axis so that one of its teeth
+    sits centred in a wheel space at the mesh.
+
+    Both gear outlines have tooth 0 centred on their local +x. Seen along the
+    common axis, the centre line leaves the wheel at angle theta_w (wheel
+    local) and the pinion at theta_p (pinion local). Let the nearest wheel
+    tooth stand delta_w from the centre line. Along the common tangent at the
+    mesh, arcs on the two operating pitch circles are in the ratio of the
+    tooth counts, and counter-clockwise runs opposite ways on the two gears,
+    so a pinion tooth at delta_p from the centre line stands midway between
+    two wheel teeth (tooth in a space) when
+    -z_p delta_p / 2 pi - z_w delta_w / 2 pi = 1/2 (mod 1),
+    i.e. delta_p = -(z_w delta_w + pi) / z_p. Profile shift changes the pitch
+    radii but not the angular pitch, so the rule holds for shifted pairs.
+    Returns the turn in [0, 360 / z_p) degrees."""
+    rw, rp = wheel_at.matrix, pinion_at.matrix
+    if float(rw[:, 2] @ rp[:, 2]) < 1.0 - 1e-9:
+        raise GeometryBug("wheel and pinion are not placed on parallel axes facing the same way")
+    c = np.asarray(pinion_at.translation_mm, dtype=float) - np.asarray(wheel_at.translation_mm, dtype=float)
+    theta_w = math.atan2(float(c @ rw[:, 1]), float(c @ rw[:, 0]))
+    theta_p = math.atan2(float(-c @ rp[:, 1]), float(-c @ rp[:, 0]))
+    pitch_w = 2 * math.pi / wheel_teeth
+    delta_w = round(theta_w / pitch_w) * pitch_w - theta_w
+    delta_p = -(wheel_teeth * delta_w + math.pi) / pinion_teeth
+    pitch_p = 2 * math.pi / pinion_teeth
+    return math.degrees((theta_p + delta_p) % pitch_p)
+
+
+def _mesh_pairs(kit: Kit) -> list[tuple[str, str]]:
+    names = {p.name for p in kit.parts}
+    return sorted((w, p) for w, p in MESHING if w in names and p in names)
+
+
+def mesh_turns_deg(kit: Kit, spec) -> dict[str, float]:
+    """The pinion's turn about its own axis for each meshing pair in the kit."""
+    out = {}
+    for wheel, pinion in _mesh_pairs(kit):
+        out[pinion] = mesh_turn_deg(spec.drive.wheel_teeth, spec.drive.pinion_teeth,
+                                    kit.part(wheel).placements[0], kit.part(pinion).placements[0])
+    return out
+
+
+def _snap(poly: Polygon) -> Polygon:
+    return shapely.set_precision(poly, GRID_MM)
+
+
+def _bore(outline: Polygon) -> Polygon:
+    """The hole of a gear outline that holds its centre (local origin)."""
+    centre = shapely.Point(0.0, 0.0)
+    for ring in outline.interiors:
+        hole = Polygon(ring)
+        if hole.contains(centre):
+            return hole
+    raise GeometryBug("the pinion outline has no bore around its centre")
+
+
+def _component_pieces(comp: Component, kit: Kit, spec, turns: dict[str, float]) -> tuple[Prism, ...]:
+    cx, cy, cz = comp.centre_mm
+    if comp.shape == "point":
+        return ()
+    if comp.shape == "box":
+        dx, dy, dz = comp.size_mm
+        ident = ((1.0, 0.0, 0.0), (0.0, 1.0, 0.0), (0.0, 0.0, 1.0))
+        pieces = [Prism(rect(-dx / 2, -dy / 2, dx / 2, dy / 2), dz,
+                        Placement(ident, (cx, cy, cz - dz / 2), comp.rotating))]
+        if comp.name == MOTOR:
+            pieces += _motor_shaft(comp, kit, spec, turns)
+        return tuple(pieces)
+    if comp.shape == "cylinder_x":
+        length, diameter, _ = comp.size_mm
+        # the same polygon the bores are cut from (chords within 0.01 mm of the
+        # circle), so a press bore meets the rod face to face
+        rod = _snap(disc(0.0, 0.0, diameter / 2))
+        return (Prism(rod, length, place(Y, Z, (cx - length / 2, cy, cz), comp.rotating)),)
+    raise GeometryBug(f"component {comp.name}: unknown shape {comp.shape!r}")
+
+
+def _motor_shaft(comp: Component, kit: Kit, spec, turns: dict[str, float]) -> list[Prism]:
+    """The motor's output shaft: the pinion's nominal bore, from the motor's
+    mounting face ``motor.shaft_length`` along -x, turned with the pinion."""
+    pinions = [p for _, p in _mesh_pairs(kit)]
+    if not pinions:
+        return []
+    pinion = kit.part(pinions[0])
+    at = spun(pinion.placements[0], turns.get(pinion.name, 0.0))
+    if abs(float(at.matrix[0, 2]) - 1.0) > _AXIS_TOL:
+        raise GeometryBug("the pinion does not face +x, the motor shaft's direction")
+    _, py, pz = at.translation_mm
+    _, cy, cz = comp.centre_mm
+    if abs(py - cy) > 1e-6 or abs(pz - cz) > 1e-6:
+        raise GeometryBug(f"the pinion axis ({py:.3f}, {pz:.3f}) is off the motor's ({cy:.3f}, {cz:.3f})")
+    face_x = comp.centre_mm[0] - comp.size_mm[0] / 2
+    length = spec.motor.shaft_length_mm
+    return [Prism(_bore(pinion.outline), length, Placement(at.rotation, (face_x - length, py, pz), False))]
+
+
+def model_bodies(kit: Kit, spec) -> tuple[Body, ...]:
+    """Every solid of the nominal model, in the kit frame at rotation 0; the
+    pinion turned so that a tooth sits in a wheel space."""
+    turns = mesh_turns_deg(kit, spec)
+    out = []
+    for part in kit.parts:
+        spin = turns.get(part.name, 0.0)
+        for i, pl in enumerate(part.placements):
+            at = spun(pl, spin) if spin else pl
+            out.append(Body(f"{part.name}#{i + 1}", part.name, "part", pl.rotating,
+                            (Prism(part.outline, part.thickness_mm, at),), part.material))
+    for comp in kit.components:
+        pieces = _component_pieces(comp, kit, spec, turns)
+        if pieces:
+            out.append(Body(comp.name, comp.name, "component", comp.rotating, pieces, "", float(comp.mass_kg)))
+    names = [b.name for b in out]
+    if len(set(names)) != len(names):
+        raise GeometryBug("two solids of the model share a name")
+    return tuple(out)
+
+
+def turns_in_place(body: Body) -> bool:
+    """A rotating body that is round about the axle (rod, collar, washers): the
+    frame's rotation only turns it in its own place."""
+    if not body.rotating:
+        return False
+    for p in body.pieces:
+        if not p.axial:
+            return False
+        shape = p.yz_projection()
+        for ring in [shape.exterior, *shape.interiors]:
+            r = np.hypot(*np.asarray(ring.coords, dtype=float).T)
+            if r.max() - r.min() > ROUND_TOL_MM:
+                return False
+    return True
+
+
+# -- exact formulas for prisms on parallel axes -----------------------------
+
+
+def _in_frame_of(a: Prism, b: Prism):
+    """b's outline in a's local plane and b's depth interval along a's axis,
+    or None when the axes are not parallel."""
+    ra, rb = a.placement.matrix, b.placement.matrix
+    m = ra.T @ rb
+    if abs(abs(float(m[2, 2])) - 1.0) > _AXIS_TOL:
+        return None
+    o = ra.T @ (np.asarray(b.placement.translation_mm) - np.asarray(a.placement.translation_mm))
+    b2 = affinity.affine_transform(b.outline, [m[0, 0], m[0, 1], m[1, 0], m[1, 1], o[0], o[1]])
+    z0, z1 = sorted((float(o[2]), float(o[2] + m[2, 2] * b.depth_mm)))
+    return b2, z0, z1
+
+
+def parallel_shared_volume_mm3(a: Prism, b: Prism) -> float | None:
+    """Exact shared volume of two prisms on parallel axes (None if not parallel)."""
+    f = _in_frame_of(a, b)
+    if f is None:
+        return None
+    b2, z0, z1 = f
+    overlap = min(a.depth_mm, z1) - max(0.0, z0)
+    if overlap <= 0:
+        return 0.0
+    return float(a.outline.intersection(b2).area) * overlap
+
+
+def parallel_distance_mm(a: Prism, b: Prism) -> float | None:
+    """Exact distance of two prisms on parallel axes (None if not parallel)."""
+    f = _in_frame_of(a, b)
+    if f is None:
+        return None
+    b2, z0, z1 = f
+    gap = max(0.0, z0 - a.depth_mm, -z1)
+    return math.hypot(gap, float(a.outline.distance(b2)))
+
+
+def _aabb_overlap(a, b, slack: float = 0.0) -> bool:
+    (alo, ahi), (blo, bhi) = a, b
+    return bool(np.all(alo < bhi + slack) and np.all(blo < ahi + slack))
+
+
+def _aabb_gap(a, b) -> float:
+    (alo, ahi), (blo, bhi) = a, b
+    d = np.maximum(0.0, np.maximum(blo - ahi, alo - bhi))
+    return float(np.linalg.norm(d))
+
+
+def _x_gap(a: tuple[float, float], b: tuple[float, float]) -> float:
+    return max(0.0, b[0] - a[1], a[0] - b[1])
+
+
+def sweep_angles(range_deg: tuple[float, float], step_deg: float) -> np.ndarray:
+    """Angles from one end of the range to the other in equal steps of at most ``step_deg``."""
+    if not 0 < step_deg <= MAX_SWEEP_STEP_DEG:
+        raise ParameterError(f"sweep step = {step_deg:g}: must be more than 0 and at most {MAX_SWEEP_STEP_DEG:g} deg")
+    lo, hi = range_deg
+    n = max(2, math.ceil((hi - lo) / step_deg - 1e-9) + 1)
+    return np.linspace(lo, hi, n)
+
+def _x_overlap(a: Body, b: Body) -> float:
+    (a0, a1), (b0, b1) = a.x_range_mm(), b.x_range_mm()
+    return min(a1, b1) - max(a0, b0)
+
