@@ -16,11 +16,13 @@ from __future__ import annotations
 
 import math
 from collections import Counter
+from dataclasses import dataclass
 
 import numpy as np
 import shapely
 from shapely import affinity
 from shapely.geometry import LineString, Point, Polygon, box
+from shapely.geometry.polygon import orient
 
 # ---------------------------------------------------------------------------
 # ISO 21771:2007 formulas (involute cylindrical gears)
@@ -191,25 +193,43 @@ def corner_angles_rad(ring_xy: np.ndarray, material_on_left: bool) -> np.ndarray
     return 2 * math.pi - material
 
 
-def inside_corner_fillets(poly: Polygon, radius_mm: float) -> tuple[float, float]:
-    """A round tool of radius r cannot reach into a corner of the material sharper than a half
-    plane from the waste side (a reflex corner of the part): it leaves a fillet of radius r there
-    (common practice for any round cutter). Returns the area those fillets keep, summed over all
-    corners, and the largest distance a fillet stands off its sharp corner.
+@dataclass(frozen=True)
+class CornerFillets:
+    """The fillets a round tool of radius r leaves in the reflex corners of a part."""
+
+    area_mm2: float            # material they keep outside the sharp outline, summed
+    reach_mm: float            # the most any fillet's arc stands off its sharp corner
+    isolated: bool             # no two fillets share an edge (the closed form holds)
+    corners_xy: np.ndarray     # the reflex corners
+    tangent_mm: np.ndarray     # each fillet's tangent length: it lies within this of its corner
+
+
+def inside_corner_fillets(poly: Polygon, radius_mm: float) -> CornerFillets:
+    """A round tool of radius r cannot reach into a reflex corner of the part (a corner whose waste
+    side spans less than a half plane): it leaves a fillet of radius r there (common practice for
+    any round cutter).
 
     Geometry of one corner whose waste side spans the angle t < pi: the two tangent lengths are
     r cot(t/2), so the area between the corner and the arc is r^2 (cot(t/2) - (pi - t)/2), and the
-    arc's middle stands r / sin(t/2) - r off the corner."""
-    poly = shapely.geometry.polygon.orient(poly, 1.0)   # exterior counter-clockwise, holes clockwise
-    area, reach = 0.0, 0.0
+    arc's middle stands r / sin(t/2) - r off the corner. The sum holds while no two fillets
+    overlap on an edge (tangent lengths of the two ends of every edge fit on it)."""
+    poly = orient(poly, 1.0)   # exterior counter-clockwise, holes clockwise: material on the left
+    area, reach, isolated = 0.0, 0.0, True
+    corners, tangents = [], []
     rings = [np.asarray(poly.exterior.coords)[:-1]] + [np.asarray(r.coords)[:-1] for r in poly.interiors]
     for ring in rings:
         t = corner_angles_rad(ring, material_on_left=True)
-        t = t[(t > 1e-9) & (t < math.pi - 1e-9)]
-        area += float(np.sum(radius_mm ** 2 * (1 / np.tan(t / 2) - (math.pi - t) / 2)))
-        if len(t):
-            reach = max(reach, float(np.max(radius_mm / np.sin(t / 2) - radius_mm)))
-    return area, reach
+        reflex = (t > 1e-9) & (t < math.pi - 1e-9)
+        tangent = np.where(reflex, radius_mm / np.tan(np.where(reflex, t, 1.0) / 2), 0.0)
+        edge = np.hypot(*(np.roll(ring, -1, axis=0) - ring).T)          # edge i runs from vertex i to i + 1
+        isolated &= bool(np.all(tangent + np.roll(tangent, -1) <= edge + 1e-12))
+        tr = t[reflex]
+        area += float(np.sum(radius_mm ** 2 * (1 / np.tan(tr / 2) - (math.pi - tr) / 2)))
+        if len(tr):
+            reach = max(reach, float(np.max(radius_mm / np.sin(tr / 2) - radius_mm)))
+        corners.append(ring[reflex])
+        tangents.append(tangent[reflex])
+    return CornerFillets(area, reach, isolated, np.concatenate(corners), np.concatenate(tangents))
 
 
 # ---------------------------------------------------------------------------
