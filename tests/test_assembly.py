@@ -18,7 +18,8 @@ Outside references used here:
   and the normal backlash is the circumferential backlash at the reference
   circle times cos(pressure angle) (ISO/TR 10064-2, from memory).
 
-cadquery is slow: each kit's solids are built once per module.
+cadquery is slow: each kit's solids are built once per module, and the STEP file
+read back is the one the session's shared demo build wrote (tests/conftest.py).
 """
 
 from __future__ import annotations
@@ -32,13 +33,14 @@ import sys
 import numpy as np
 import pytest
 from click.testing import CliRunner
-from hypothesis import event, example, given, settings
+from hypothesis import example, given, settings
 from hypothesis import strategies as st
 
 from sheetgen.errors import ParameterError, SheetgenError
 from sheetgen.kit import build_kit, frame_sweep
 from sheetgen.mechanics.solar import tracking_range
 from sheetgen.spec import load_spec
+from tests import _refs as R
 from tests.conftest import DEMO, PARAMS, ROOT
 
 VARIANTS = sorted(PARAMS.glob("*.toml"))
@@ -392,7 +394,10 @@ KIT_PARAMS = st.fixed_dictionaries({
 })
 
 
-@settings(max_examples=5, deadline=None)
+# derandomized: with five draws of a kit that takes seconds to assemble, a random run would fail the
+# refused-draw tally (most draws refused) now and then by chance (about 1 run in 150 at the 20 % refusal
+# rate seen with random draws); the fixed draws are all kept (pytest --hypothesis-show-statistics)
+@settings(max_examples=5, deadline=None, derandomize=True)
 @given(KIT_PARAMS)
 @example({"panel.width": 200, "panel.height": 140, "panel.thickness": 4.5, "sheet.thickness": 4.0,
           "axle.height": 130, "axle.diameter": 8.0, "drive.module": 1.5, "drive.pinion_teeth": 14,
@@ -407,9 +412,9 @@ def test_any_valid_kit_assembles_cleanly_or_is_refused_clearly(params):
         msg = str(exc)
         assert isinstance(exc, ParameterError), msg
         assert "\n" not in msg and re.search(r"\b[a-z_]+\.[a-z_]+\b", msg) and "must" in msg, msg
-        event(f"refused: {msg.split(':')[0]}")
+        R.refused(msg.split(":")[0])
         return
-    event("assembled")
+    R.kept()
     _, report = _assembled(spec, kit, 2.0)
     assert report.ok, json.dumps({k: v for k, v in report.to_json().items() if k != "solids"})[:2000]
 
@@ -440,7 +445,7 @@ def demo_run(tmp_path_factory):
     from sheetgen.commands.assemble import command
 
     out = tmp_path_factory.mktemp("assembly") / "out"
-    res = CliRunner().invoke(command, [str(DEMO), "-o", str(out), "--json"])
+    res = CliRunner().invoke(command, [str(DEMO), "-o", str(out), "--json", "--sweep-step", "2"])
     assert res.exit_code == 0, res.output
     return out, json.loads(res.output)
 
@@ -461,16 +466,20 @@ def _bbox(s):
     return np.array([b.xmin, b.ymin, b.zmin]), np.array([b.xmax, b.ymax, b.zmax])
 
 
-def test_step_read_back_holds_one_solid_per_part_none_sharing_volume_none_floating(demo_run, demo_kit, demo_spec):
-    # reference: a separate reading of the file with cadquery's STEP importer (OpenCascade)
+def test_step_read_back_holds_one_solid_per_part_none_sharing_volume_none_floating(demo_build_3, demo_kit, demo_spec):
+    # reference: a separate reading of the file with cadquery's STEP importer (OpenCascade); the file is
+    # the one `sheetgen build` writes (model/assembly.step, the session's shared demo build), its figures
+    # the build summary's "assembly" section
     import cadquery as cq
     from OCP.BRepExtrema import BRepExtrema_DistShapeShape
 
-    out, data = demo_run
-    text = (out / "assembly.step").read_text(encoding="latin-1")
+    folder, summary = demo_build_3
+    data = summary["assembly"]
+    step = folder / "model" / "assembly.step"
+    text = step.read_text(encoding="latin-1")
     for s in data["solids"]:
         assert f"PRODUCT('{s['name']}'" in text, s["name"]
-    solids = cq.importers.importStep(str(out / "assembly.step")).solids().vals()
+    solids = cq.importers.importStep(str(step)).solids().vals()
     assert len(solids) == _expected_solids(demo_kit)
     # the same solids: volumes match the model's one for one
     assert sorted(s.Volume() for s in solids) == pytest.approx(sorted(s["volume_mm3"] for s in data["solids"]),
@@ -541,10 +550,9 @@ def test_text_summary_names_the_figures(kits):
     assert "frame over the fixed parts" in text and "pinch" in text
 
 
-def test_bad_input_exits_2_with_one_line_and_writes_nothing(tmp_path, monkeypatch):
+def test_bad_input_exits_2_with_one_line_and_writes_nothing(tmp_path):
     import sheetgen.cli as cli
 
-    monkeypatch.setitem(cli.COMMANDS, "assemble", "sheetgen.commands.assemble")
     out = tmp_path / "out"
     res = CliRunner().invoke(cli.main, ["assemble", str(DEMO), "-o", str(out), "--set", "panel.width=5"])
     assert res.exit_code == 2
