@@ -7,16 +7,19 @@ Outside references used here:
   geometry kernel: volumes, centres of mass, booleans and distances are
   measured on its solids, independently of the shapely formulas the checks
   use for plates on parallel axes.
-* ``sheetgen.kit.frame_sweep``: an independent 2D silhouette sweep of the
-  turning frame, cross-checked against the 3D sweep.
-* ``sheetgen.mechanics`` (balance check): masses and CG from shapely areas
-  and centroids, cross-checked against the solids' own mass properties.
 * Geometry handbook facts: a prism's volume is its base area times its height
   (Cavalieri's principle); projecting along an axis never lengthens a
   distance.
 * Gears: at the pitch point a tooth of one gear faces a space of the other,
   and the normal backlash is the circumferential backlash at the reference
   circle times cos(pressure angle) (ISO/TR 10064-2, from memory).
+
+Internal cross-checks (two parts of sheetgen held against each other, marked
+so beside the check): ``sheetgen.kit.frame_sweep``, a separate 2D silhouette
+sweep of the turning frame, against the 3D sweep; ``sheetgen.mechanics``
+(balance check: masses and CG from shapely areas and centroids) against the
+solids' own mass properties; the tracking range of ``sheetgen.mechanics.solar``
+(itself tested against Duffie & Beckman in tests/test_solar.py).
 
 cadquery is slow: each kit's solids are built once per module, and the STEP file
 read back is the one the session's shared demo build wrote (tests/conftest.py).
@@ -112,7 +115,7 @@ def test_shipped_kits_assemble_cleanly(kits, name):
     assert report.floating_parts == () and report.detached_parts == ()
     assert report.tabs and report.tabs_ok
     assert {(t.tab_part, t.slot_part) for t in report.tabs} == {(j.tab_part, j.slot_part) for j in kit.joints}
-    # the sweep covers the tracking range (Duffie & Beckman via sheetgen.mechanics.solar) in steps <= 2 deg
+    # the sweep covers the tracking range in steps <= 2 deg (internal cross-check: sheetgen.mechanics.solar)
     tr = tracking_range(spec.site.latitude_deg, spec.site.axle, spec.site.travel_limit_deg)
     assert report.tracking_range_deg == pytest.approx(tr.range_deg)
     assert 0 < report.step_deg <= 2.0
@@ -126,7 +129,7 @@ def test_shipped_kits_assemble_cleanly(kits, name):
 
 @pytest.mark.parametrize("name", [p.name for p in VARIANTS])
 def test_3d_frame_clearance_agrees_with_the_2d_sweep(kits, name):
-    # reference: sheetgen.kit.frame_sweep, the independent 2D silhouette sweep; for a
+    # internal cross-check: sheetgen.kit.frame_sweep, the separate 2D silhouette sweep; for a
     # plate across the axle facing a plate along it, the 2D distance is the 3D one
     spec, kit, _, report = kits[name]
     tr = tracking_range(spec.site.latitude_deg, spec.site.axle, spec.site.travel_limit_deg)
@@ -169,7 +172,7 @@ def test_a_frame_hitting_the_stand_is_caught_with_parts_and_angle(wrong):
     assert not report.ok and report.collisions
     assert report.min_clearance_mm == 0.0
     worst = report.collisions[0]
-    # reference: the independent 2D silhouette sweep names the same pair and angle
+    # internal cross-check: the separate 2D silhouette sweep names the same pair and angle
     tr = tracking_range(spec.site.latitude_deg, spec.site.axle, spec.site.travel_limit_deg)
     flat = frame_sweep(kit, tr.range_deg, report.step_deg)
     assert flat.min_clearance_mm == 0.0
@@ -225,7 +228,7 @@ def test_each_solid_is_its_outline_area_times_thickness(kits, name):
 
 @pytest.mark.parametrize("name", [p.name for p in VARIANTS])
 def test_turning_mass_and_cg_equal_the_balance_check(kits, name):
-    # reference: sheetgen.mechanics.check.balance_check (shapely areas and centroids)
+    # internal cross-check: sheetgen.mechanics.check.balance_check (shapely areas and centroids)
     spec, kit, model, report = kits[name]
     from sheetgen.mechanics.check import balance_check
 

@@ -369,6 +369,8 @@ def test_12_36_pair_meshes_without_overlap():
 def test_zero_backlash_shifted_pair_meshes_tight_at_working_centre_distance():
     # ISO 21771: shifted gears mesh without backlash at a_w = a cos a / cos a_w
     pair, area, gmin, gmax = _mesh_sweep(GearSpec(1.0, 12, shift=0.4), GearSpec(1.0, 36, shift=0.1), steps=36)
+    assert pair.centre_distance_mm == pytest.approx(R.working_centre_distance_mm(1.0, 12, 36, 20.0, 0.4, 0.1),
+                                                    abs=1e-9)
     assert area < 1e-6
     assert gmax <= 2 * pair.pinion.chord_tol_mm      # only the chords leave a gap
     # and at the unmodified distance a = 24 mm the same gears would collide
