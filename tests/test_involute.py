@@ -20,12 +20,10 @@ import pytest
 import shapely
 from hypothesis import given, settings
 from hypothesis import strategies as st
-from shapely import affinity
 from shapely.geometry import Point, Polygon
 
 from sheetgen.geometry import involute as I
 from tests import _refs as R
-
 
 # ---------------------------------------------------------------------------
 # the involute function and standard dimensions

@@ -22,7 +22,6 @@ from __future__ import annotations
 
 import math
 
-import numpy as np
 import pytest
 import shapely
 from hypothesis import given, settings
