@@ -1,19 +1,39 @@
-"""Shared fixtures: the demo parameters, built once per session."""
+"""Shared fixtures: the demo parameters, kit and production build, each made once per session;
+and the tally of refused property-test draws around every test call."""
 
 from __future__ import annotations
 
+import json
 from pathlib import Path
 
 import pytest
 from hypothesis import HealthCheck, settings
 
+from tests import _refs
+
 ROOT = Path(__file__).resolve().parents[1]
 PARAMS = ROOT / "params"
 DEMO = PARAMS / "demo.toml"
+DEMO_BUILD_KITS = 3
 
 settings.register_profile("ci", max_examples=25, deadline=None,
                           suppress_health_check=[HealthCheck.too_slow])
 settings.load_profile("ci")
+
+
+@pytest.hookimpl(wrapper=True)
+def pytest_runtest_call(item):
+    """Open a draw tally for the test; fail it when most of its draws were refused
+    (see tests/_refs.py: ``kept()`` and ``refused(reason)``)."""
+    tally = _refs.open_tally(item.nodeid)
+    try:
+        result = yield
+    finally:
+        _refs.close_tally(tally)
+    verdict = tally.verdict()
+    if verdict:
+        pytest.fail(verdict, pytrace=False)
+    return result
 
 
 @pytest.fixture(scope="session")
@@ -28,3 +48,19 @@ def demo_kit(demo_spec):
     from sheetgen.kit import build_kit
 
     return build_kit(demo_spec)
+
+
+@pytest.fixture(scope="session")
+def demo_build_3(tmp_path_factory):
+    """`sheetgen build params/demo.toml --kits 3` (3D model included), run once per test session.
+
+    Returns (folder, summary.json as a dict). Tests only read the folder; a test that needs to
+    change or rebuild it makes its own copy."""
+    from click.testing import CliRunner
+
+    from sheetgen.cli import main
+
+    out = tmp_path_factory.mktemp("demo-build-3") / "out"
+    res = CliRunner().invoke(main, ["build", str(DEMO), "--kits", str(DEMO_BUILD_KITS), "-o", str(out)])
+    assert res.exit_code == 0, res.output
+    return out, json.loads((out / "summary.json").read_text(encoding="utf-8"))

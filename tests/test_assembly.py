@@ -7,10 +7,6 @@ Outside references used here:
   geometry kernel: volumes, centres of mass, booleans and distances are
   measured on its solids, independently of the shapely formulas the checks
   use for plates on parallel axes.
-* ``sheetgen.kit.frame_sweep``: an independent 2D silhouette sweep of the
-  turning frame, cross-checked against the 3D sweep.
-* ``sheetgen.mechanics`` (balance check): masses and CG from shapely areas
-  and centroids, cross-checked against the solids' own mass properties.
 * Geometry handbook facts: a prism's volume is its base area times its height
   (Cavalieri's principle); projecting along an axis never lengthens a
   distance.
@@ -18,7 +14,15 @@ Outside references used here:
   and the normal backlash is the circumferential backlash at the reference
   circle times cos(pressure angle) (ISO/TR 10064-2, from memory).
 
-cadquery is slow: each kit's solids are built once per module.
+Internal cross-checks (two parts of sheetgen held against each other, marked
+so beside the check): ``sheetgen.kit.frame_sweep``, a separate 2D silhouette
+sweep of the turning frame, against the 3D sweep; ``sheetgen.mechanics``
+(balance check: masses and CG from shapely areas and centroids) against the
+solids' own mass properties; the tracking range of ``sheetgen.mechanics.solar``
+(itself tested against Duffie & Beckman in tests/test_solar.py).
+
+cadquery is slow: each kit's solids are built once per module, and the STEP file
+read back is the one the session's shared demo build wrote (tests/conftest.py).
 """
 
 from __future__ import annotations
@@ -32,13 +36,14 @@ import sys
 import numpy as np
 import pytest
 from click.testing import CliRunner
-from hypothesis import event, example, given, settings
+from hypothesis import example, given, settings
 from hypothesis import strategies as st
 
 from sheetgen.errors import ParameterError, SheetgenError
 from sheetgen.kit import build_kit, frame_sweep
 from sheetgen.mechanics.solar import tracking_range
 from sheetgen.spec import load_spec
+from tests import _refs as R
 from tests.conftest import DEMO, PARAMS, ROOT
 
 VARIANTS = sorted(PARAMS.glob("*.toml"))
@@ -110,7 +115,7 @@ def test_shipped_kits_assemble_cleanly(kits, name):
     assert report.floating_parts == () and report.detached_parts == ()
     assert report.tabs and report.tabs_ok
     assert {(t.tab_part, t.slot_part) for t in report.tabs} == {(j.tab_part, j.slot_part) for j in kit.joints}
-    # the sweep covers the tracking range (Duffie & Beckman via sheetgen.mechanics.solar) in steps <= 2 deg
+    # the sweep covers the tracking range in steps <= 2 deg (internal cross-check: sheetgen.mechanics.solar)
     tr = tracking_range(spec.site.latitude_deg, spec.site.axle, spec.site.travel_limit_deg)
     assert report.tracking_range_deg == pytest.approx(tr.range_deg)
     assert 0 < report.step_deg <= 2.0
@@ -124,7 +129,7 @@ def test_shipped_kits_assemble_cleanly(kits, name):
 
 @pytest.mark.parametrize("name", [p.name for p in VARIANTS])
 def test_3d_frame_clearance_agrees_with_the_2d_sweep(kits, name):
-    # reference: sheetgen.kit.frame_sweep, the independent 2D silhouette sweep; for a
+    # internal cross-check: sheetgen.kit.frame_sweep, the separate 2D silhouette sweep; for a
     # plate across the axle facing a plate along it, the 2D distance is the 3D one
     spec, kit, _, report = kits[name]
     tr = tracking_range(spec.site.latitude_deg, spec.site.axle, spec.site.travel_limit_deg)
@@ -167,7 +172,7 @@ def test_a_frame_hitting_the_stand_is_caught_with_parts_and_angle(wrong):
     assert not report.ok and report.collisions
     assert report.min_clearance_mm == 0.0
     worst = report.collisions[0]
-    # reference: the independent 2D silhouette sweep names the same pair and angle
+    # internal cross-check: the separate 2D silhouette sweep names the same pair and angle
     tr = tracking_range(spec.site.latitude_deg, spec.site.axle, spec.site.travel_limit_deg)
     flat = frame_sweep(kit, tr.range_deg, report.step_deg)
     assert flat.min_clearance_mm == 0.0
@@ -223,7 +228,7 @@ def test_each_solid_is_its_outline_area_times_thickness(kits, name):
 
 @pytest.mark.parametrize("name", [p.name for p in VARIANTS])
 def test_turning_mass_and_cg_equal_the_balance_check(kits, name):
-    # reference: sheetgen.mechanics.check.balance_check (shapely areas and centroids)
+    # internal cross-check: sheetgen.mechanics.check.balance_check (shapely areas and centroids)
     spec, kit, model, report = kits[name]
     from sheetgen.mechanics.check import balance_check
 
@@ -392,7 +397,10 @@ KIT_PARAMS = st.fixed_dictionaries({
 })
 
 
-@settings(max_examples=5, deadline=None)
+# derandomized: with five draws of a kit that takes seconds to assemble, a random run would fail the
+# refused-draw tally (most draws refused) now and then by chance (about 1 run in 150 at the 20 % refusal
+# rate seen with random draws); the fixed draws are all kept (pytest --hypothesis-show-statistics)
+@settings(max_examples=5, deadline=None, derandomize=True)
 @given(KIT_PARAMS)
 @example({"panel.width": 200, "panel.height": 140, "panel.thickness": 4.5, "sheet.thickness": 4.0,
           "axle.height": 130, "axle.diameter": 8.0, "drive.module": 1.5, "drive.pinion_teeth": 14,
@@ -407,9 +415,9 @@ def test_any_valid_kit_assembles_cleanly_or_is_refused_clearly(params):
         msg = str(exc)
         assert isinstance(exc, ParameterError), msg
         assert "\n" not in msg and re.search(r"\b[a-z_]+\.[a-z_]+\b", msg) and "must" in msg, msg
-        event(f"refused: {msg.split(':')[0]}")
+        R.refused(msg.split(":")[0])
         return
-    event("assembled")
+    R.kept()
     _, report = _assembled(spec, kit, 2.0)
     assert report.ok, json.dumps({k: v for k, v in report.to_json().items() if k != "solids"})[:2000]
 
@@ -440,7 +448,7 @@ def demo_run(tmp_path_factory):
     from sheetgen.commands.assemble import command
 
     out = tmp_path_factory.mktemp("assembly") / "out"
-    res = CliRunner().invoke(command, [str(DEMO), "-o", str(out), "--json"])
+    res = CliRunner().invoke(command, [str(DEMO), "-o", str(out), "--json", "--sweep-step", "2"])
     assert res.exit_code == 0, res.output
     return out, json.loads(res.output)
 
@@ -461,16 +469,20 @@ def _bbox(s):
     return np.array([b.xmin, b.ymin, b.zmin]), np.array([b.xmax, b.ymax, b.zmax])
 
 
-def test_step_read_back_holds_one_solid_per_part_none_sharing_volume_none_floating(demo_run, demo_kit, demo_spec):
-    # reference: a separate reading of the file with cadquery's STEP importer (OpenCascade)
+def test_step_read_back_holds_one_solid_per_part_none_sharing_volume_none_floating(demo_build_3, demo_kit, demo_spec):
+    # reference: a separate reading of the file with cadquery's STEP importer (OpenCascade); the file is
+    # the one `sheetgen build` writes (model/assembly.step, the session's shared demo build), its figures
+    # the build summary's "assembly" section
     import cadquery as cq
     from OCP.BRepExtrema import BRepExtrema_DistShapeShape
 
-    out, data = demo_run
-    text = (out / "assembly.step").read_text(encoding="latin-1")
+    folder, summary = demo_build_3
+    data = summary["assembly"]
+    step = folder / "model" / "assembly.step"
+    text = step.read_text(encoding="latin-1")
     for s in data["solids"]:
         assert f"PRODUCT('{s['name']}'" in text, s["name"]
-    solids = cq.importers.importStep(str(out / "assembly.step")).solids().vals()
+    solids = cq.importers.importStep(str(step)).solids().vals()
     assert len(solids) == _expected_solids(demo_kit)
     # the same solids: volumes match the model's one for one
     assert sorted(s.Volume() for s in solids) == pytest.approx(sorted(s["volume_mm3"] for s in data["solids"]),
@@ -541,10 +553,9 @@ def test_text_summary_names_the_figures(kits):
     assert "frame over the fixed parts" in text and "pinch" in text
 
 
-def test_bad_input_exits_2_with_one_line_and_writes_nothing(tmp_path, monkeypatch):
+def test_bad_input_exits_2_with_one_line_and_writes_nothing(tmp_path):
     import sheetgen.cli as cli
 
-    monkeypatch.setitem(cli.COMMANDS, "assemble", "sheetgen.commands.assemble")
     out = tmp_path / "out"
     res = CliRunner().invoke(cli.main, ["assemble", str(DEMO), "-o", str(out), "--set", "panel.width=5"])
     assert res.exit_code == 2

@@ -17,7 +17,7 @@ import pytest
 from click.testing import CliRunner
 from hypothesis import given
 from hypothesis import strategies as st
-from shapely.geometry import Polygon
+from shapely.geometry import Polygon, box
 
 from sheetgen.commands.coupon import command as coupon_command
 from sheetgen.commands.kerf import command as kerf_command
@@ -87,7 +87,21 @@ def test_coupon_holds_the_labelled_slots_the_tab_and_the_square():
     ys = sorted({round(y, 6) for _, y in tab_piece[0].exterior.coords})
     assert ys[-1] - ys[-2] == pytest.approx(3.0)
     xs_top = sorted(x for x, y in tab_piece[0].exterior.coords if round(y, 6) == ys[-1])
-    assert xs_top[-1] - xs_top[0] == pytest.approx(10.0) and 10.0 < 12.0
+    tab_w = xs_top[-1] - xs_top[0]
+    assert tab_w == pytest.approx(10.0)
+    # the tab's section (sheet thickness across, tab width along) goes into the slot drawn at the
+    # sheet thickness with room to spare lengthwise, so only the width is tested (both measured from the file)
+    slot_len = min(s.bounds[3] - s.bounds[1] for s in slots)
+    assert tab_w < slot_len
+    at_t = [s for s in slots if s.bounds[2] - s.bounds[0] == pytest.approx(3.0, abs=1e-9)]
+    assert len(at_t) == 1
+    cx, cy = at_t[0].centroid.x, at_t[0].centroid.y
+    section = box(cx - 3.0 / 2 + 1e-9, cy - tab_w / 2, cx + 3.0 / 2 - 1e-9, cy + tab_w / 2)
+    assert at_t[0].contains(section)
+    # one slot narrower (2.95 mm) does not take it
+    narrower = min((s for s in slots if s.bounds[2] - s.bounds[0] < 3.0 - 1e-9), key=lambda s: -(s.bounds[2] - s.bounds[0]))
+    ncx, ncy = narrower.centroid.x, narrower.centroid.y
+    assert not narrower.contains(box(ncx - 1.5, ncy - tab_w / 2, ncx + 1.5, ncy + tab_w / 2))
 
 
 @given(st.floats(min_value=1.5, max_value=12.0))

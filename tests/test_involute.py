@@ -4,8 +4,11 @@ Sources named beside each check:
 * ISO 21771 (span / base tangent length formula, working pressure angle);
 * Elements of Metric Gear Technology (handbook tables; values "from memory");
 * the definition of the involute function;
-* first principles: the generating rack (ISO 53 basic rack, from memory) rolled
-  on the pitch circle and subtracted from the blank, simulated with shapely.
+* first principles: the generating rack (ISO 53:1998 basic rack, from memory,
+  written in tests/_refs.py with nothing taken from sheetgen) rolled on the pitch
+  circle and subtracted from the blank, simulated with shapely.
+
+Checks that compare two sheetgen functions are marked "internal cross-check".
 """
 
 from __future__ import annotations
@@ -17,11 +20,10 @@ import pytest
 import shapely
 from hypothesis import given, settings
 from hypothesis import strategies as st
-from shapely import affinity
-from shapely.geometry import Point, Polygon, box
+from shapely.geometry import Point, Polygon
 
 from sheetgen.geometry import involute as I
-
+from tests import _refs as R
 
 # ---------------------------------------------------------------------------
 # the involute function and standard dimensions
@@ -29,6 +31,7 @@ from sheetgen.geometry import involute as I
 
 def test_inv_20_degrees():
     # definition inv(a) = tan a - a; 0.014904 at 20 deg (Elements of Metric Gear Technology table, from memory)
+    assert R.inv(math.radians(20.0)) == pytest.approx(0.014904, abs=5e-7)
     assert I.inv(math.radians(20.0)) == pytest.approx(0.014904, abs=5e-7)
     assert I.inv(math.radians(20.0)) == pytest.approx(math.tan(math.radians(20)) - math.radians(20), rel=1e-15)
 
@@ -88,6 +91,7 @@ def test_working_pressure_angle_handbook_example():
     # m 3, z 12/24, x 0.6/0.36 -> inv a_w 0.034316, a_w 26.0886 deg
     aw = I.working_pressure_angle_rad(20.0, 12, 24, 0.6, 0.36)
     assert I.inv(aw) == pytest.approx(0.034316, abs=5e-7)
+    assert math.degrees(R.working_pressure_angle_rad(20.0, 12, 24, 0.6, 0.36)) == pytest.approx(26.0886, abs=5e-5)
     assert math.degrees(aw) == pytest.approx(26.0886, abs=5e-5)
     # ISO 21771: inv a_w = inv a + 2 tan a (x1 + x2) / (z1 + z2)
     assert I.inv(aw) == pytest.approx(I.inv(math.radians(20)) + 2 * math.tan(math.radians(20)) * 0.96 / 36, rel=1e-12)
@@ -143,67 +147,63 @@ def test_arc_points_sagitta():
 # the generated outline against a simulated generating rack
 # ---------------------------------------------------------------------------
 
-def _cutter_tooth(m, alpha_deg, x, thinning, rho):
-    """One tooth of the ISO 53 basic rack (thickened by the thinning), in rack
-    coordinates (u radial from the rolling line, v along it), tip corners
-    rounded with radius rho by a morphological opening."""
-    a = math.radians(alpha_deg)
-    s = I.pitch_tooth_thickness_mm(m, alpha_deg, x, thinning)
-    half_e = (math.pi * m - s) / 2
-    ut, top = -(1.25 - x) * m, (1.25 + x) * m + 2 * m
-    hw = lambda u: half_e + u * math.tan(a)
-    trap = Polygon([(ut, -hw(ut)), (ut, hw(ut)), (top, hw(top)), (top, -hw(top))])
-    body = box(top - 0.5 * m, -3 * m, top + m, 3 * m)
-    t = trap.union(body)
-    return t.buffer(-rho, quad_segs=256).buffer(rho, quad_segs=256)
-
-
-def _rack_cut_tooth_region(m, z, alpha_deg, x, thinning, offset, step_mm=0.004):
-    """The blank left by the rack, near the lower flank of tooth 0.
-
-    The rack rolls on the pitch circle: gear turned by phi <-> rack moved r_p phi.
-    The kerf offset is applied to the rack (inward, round joins): the outward
-    offset of the cut gear is the gear cut by the inward-offset rack."""
-    tf = I.tooth_form(m, z, alpha_deg, x, thinning, offset)
-    ct = _cutter_tooth(m, alpha_deg, x, thinning, tf.rho_nominal)
-    if offset:
-        ct = ct.buffer(-offset, quad_segs=256)
-    rp = m * z / 2
-    ct = affinity.translate(ct, xoff=rp, yoff=-math.pi * m / 2)    # the cutter in the space at -pi/z
-    coords = shapely.get_coordinates(ct.exterior)
-    disk = Point(0, 0).buffer(tf.r_tip + m, quad_segs=256)
-    polys = []
-    for ph in np.arange(-1.4, 1.4, step_mm / rp):
-        xy = coords + np.array([0.0, rp * ph])
-        c, s = math.cos(-ph), math.sin(-ph)
-        p = Polygon(np.column_stack([c * xy[:, 0] - s * xy[:, 1], s * xy[:, 0] + c * xy[:, 1]]))
-        if p.intersects(disk):
-            polys.append(p)
-    return tf, shapely.union_all(polys)
-
-
 @pytest.mark.parametrize("m, z, alpha, x, thinning, offset", [
     (1.0, 8, 20.0, 0.0, 0.0, 0.0),      # heavily undercut
     (1.0, 20, 25.0, 0.0, 0.0, 0.0),     # full-round rack tip, no undercut
-    (1.0, 12, 20.0, 0.3, 0.05, 0.45),   # offset larger than the rack fillet: sharp offset corner
+    (1.0, 12, 20.0, 0.3, 0.05, 0.45),   # kerf offset larger than the rack fillet
 ])
 def test_outline_matches_simulated_rack_cut(m, z, alpha, x, thinning, offset):
-    # first principles: the gear is what the rack (ISO 53 basic rack) leaves when rolled on the pitch circle
-    tf, swept = _rack_cut_tooth_region(m, z, alpha, x, thinning, offset)
+    # first principles: the gear is what the generating rack leaves when it rolls on the reference circle.
+    # The rack is the ISO 53:1998 basic rack (dedendum 1.25 m, tip fillet 0.38 m or a full round, flanks at
+    # the pressure angle), its datum line x m outside the rolling line (ISO 21771:2007), built in
+    # tests/_refs.py from those figures alone.
+    # With a kerf offset d the outline is a cut path: a round beam of radius d whose centre follows it
+    # leaves the path eroded by d. A round tool cannot cut a concave fillet tighter than itself (common
+    # practice), so the beam leaves the gear that a rack with tip fillet max(rho, d) would cut.
+    rho = max(R.rack_tip_fillet_mm(m, alpha, x, thinning), offset)
+    space = R.rack_generated_space(m, z, alpha, x, thinning, fillet_mm=rho)
+    tf = I.tooth_form(m, z, alpha, x, thinning, offset)
     ours = Polygon(I.gear_outline_xy(tf, 0.0025))
-    R = tf.r_tip - 0.02 * m
-    wedge = Polygon([(0, 0), (3 * R * math.cos(-0.98 * math.pi / z), 3 * R * math.sin(-0.98 * math.pi / z)),
-                     (3 * R, 0)]).intersection(Point(0, 0).buffer(R, quad_segs=512))
+    if offset:
+        ours = ours.buffer(-offset, quad_segs=256)          # what the round beam leaves
+    r_tip = m * (z / 2 + R.ISO53_ADDENDUM + x)              # ISO 53 addendum 1.00 m, plus the shift
+    assert tf.r_tip == pytest.approx(r_tip + offset, abs=1e-12)
+    rr = r_tip - 0.02 * m
+    wedge = Polygon([(0, 0), (3 * rr * math.cos(-0.98 * math.pi / z), 3 * rr * math.sin(-0.98 * math.pi / z)),
+                     (3 * rr, 0)]).intersection(Point(0, 0).buffer(rr, quad_segs=512))
     a = ours.intersection(wedge)
-    b = wedge.difference(swept)
+    b = wedge.difference(space)
     # the simulation scallops (step 0.004 mm of rack travel) and our chords (0.0025 mm) both stay small
     assert a.boundary.hausdorff_distance(b.boundary) < 0.005
     assert a.symmetric_difference(b).area < 0.01 * m
 
 
+def test_simulated_rack_is_the_iso53_rack():
+    # the reference rack itself, against ISO 53:1998 (from memory): on the datum line tooth = space = p / 2
+    # (the generating tooth fills a gear space, so it is pi m / 2 wide there), flanks at the pressure angle,
+    # 1.25 m from the datum line to the tip, which carries the 0.38 m fillet at 20 deg
+    m, x = 2.0, 0.25
+    tooth = R.generating_tooth(m, 20.0, x)
+    u_datum = x * m
+    cut = tooth.intersection(shapely.geometry.LineString([(u_datum, -10), (u_datum, 10)]))
+    assert cut.length == pytest.approx(math.pi * m / 2, abs=1e-5)    # the opening is polygonised
+    assert tooth.bounds[0] == pytest.approx(u_datum - 1.25 * m, abs=1e-3)
+    assert R.rack_tip_fillet_mm(m, 20.0, x) == pytest.approx(0.38 * m)
+    # flank angle: the width grows by 2 tan a per unit height between the datum line and 0.5 m below it
+    u2 = u_datum - 0.5 * m
+    cut2 = tooth.intersection(shapely.geometry.LineString([(u2, -10), (u2, 10)]))
+    assert (cut.length - cut2.length) / (0.5 * m) == pytest.approx(2 * math.tan(math.radians(20.0)), abs=1e-6)
+    # at 25 deg the tip is too narrow for 0.38 m: the fillet is the full round b cos a / (1 - sin a),
+    # b = pi m / 4 - 1.25 m tan 25 = 0.20251 m, cos 25 = 0.906308, 1 - sin 25 = 0.577382 -> 0.31788 m
+    # (hand calculation)
+    assert R.rack_tip_fillet_mm(1.0, 25.0, 0.0) == pytest.approx(0.31788, abs=1e-5)
+
+
 def test_kerf_offset_is_the_involute_of_the_same_base_circle():
     # involute geometry: the normal offset d of an involute is the involute of the same base
     # circle with base arc thickness + d per flank, so thickness at the pitch circle + 2 d / cos a
+    # (the thicknesses below are read from the tooth form's own base angle: an internal cross-check;
+    # the distances after them are measured)
     m, z, a = 1.5, 24, 20.0
     d = 0.1
     t0 = I.tooth_form(m, z, a, 0.2)
@@ -225,8 +225,16 @@ def test_rack_straight_flank_ends_at_one_module():
     # ISO 53 (from memory): the 0.38 m tip fillet of the 1.25 m dedendum rack leaves a straight
     # flank to 1.00 m at 20 deg (0.38 (1 - sin 20) = 0.250), so the rack's own undercut limit
     # is the handbook's x_min = 1 - z sin^2 a / 2 (Elements of Metric Gear Technology sec. 4.3)
+    s20 = math.sin(math.radians(20.0))
+    assert 1.25 - 0.38 * (1 - s20) == pytest.approx(1.0, abs=1e-4)
     for z in (8, 12, 17):
-        assert I.rack_min_shift_no_undercut(z, 20.0) == pytest.approx(I.min_shift_no_undercut(z, 20.0), abs=1e-4)
+        assert I.rack_min_shift_no_undercut(z, 20.0) == pytest.approx(1 - z * s20 ** 2 / 2, abs=1e-4)
+    # at other angles the rack's limit is its straight-flank depth h = 1.25 - rho (1 - sin a), rho the
+    # ISO 53 fillet or the full round (tests/_refs.py), less z sin^2 a / 2 (generating-rack geometry)
+    for z, a in ((9, 14.5), (12, 24.5), (30, 25.0)):
+        sa = math.sin(math.radians(a))
+        h = 1.25 - R.rack_tip_fillet_mm(1.0, a, 0.0) * (1 - sa)
+        assert I.rack_min_shift_no_undercut(z, a) == pytest.approx(h - z * sa ** 2 / 2, abs=1e-9)
     # and the generated form turns undercut exactly there (generating-rack geometry)
     for z, a in ((12, 20.0), (9, 14.5), (12, 24.5)):
         x0 = I.rack_min_shift_no_undercut(z, a)
