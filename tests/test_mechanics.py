@@ -389,3 +389,23 @@ def test_failing_variants_say_which_check_and_why():
     failed = {c.name: c for c in r.checks if c.binding and not c.passed}
     assert not r.ok and "motor torque" in failed
     assert "needs" in failed["motor torque"].reason and "gear ratio" in failed["motor torque"].reason
+
+
+def test_demo_pulse_fix_passes_when_built_in():
+    # check the machine: the change the failing pulse check names (the counterweight,
+    # then a smaller capacitor) is put into the parameters and the kit checked again
+    doc = _demo_doc()
+    r = _report(doc)
+    step = next(c for c in r.checks if c.name == "pulse step in calm air")
+    assert not step.passed and "would pass" in step.reason
+    fix = r.drive_time.fixes[0]
+    assert fix.key == "drive.pulse_capacitance" and "counterweight" in fix.text
+    cw = r.counterweight
+    doc["rotating_mass"] = list(doc.get("rotating_mass", [])) + [
+        {"name": "counterweight", "mass_kg": cw.mass_kg, "position_mm": list(cw.position_mm)}]
+    doc["drive"]["pulse_capacitance"] = fix.value
+    again = _report(doc)
+    checks = {c.name: c for c in again.checks}
+    assert checks["pulse step in calm air"].passed, checks["pulse step in calm air"].reason
+    assert checks["pulse moves the frame in the design wind"].passed
+    assert again.pulse_step_calm_deg <= doc["drive"].get("max_step", 5.0)

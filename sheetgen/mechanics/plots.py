@@ -3,7 +3,7 @@
 Drawn with matplotlib's SVG backend (imported here, inside the functions,
 so nothing loads it until a plot is made). Deterministic: no date or
 creator in the metadata, a fixed ``svg.hashsalt`` for the generated ids,
-text kept as text. Every id is prefixed with the plot's name so several
+text kept as text, every data point kept (no path simplification). Every id is prefixed with the plot's name so several
 plots can sit in one HTML page. Each data series is a group whose id is
 ``<plot>-series-<name>`` so readers (and tests) can find it.
 
@@ -12,6 +12,7 @@ Each function takes plain figures and returns the SVG as a string.
 
 from __future__ import annotations
 
+import functools
 import io
 import math
 import re
@@ -24,6 +25,21 @@ _COLOURS = {"jun": "#c0392b", "equ": "#2e7d32", "dec": "#1f5fa8", "gravity": "#8
             "windstep": "#c76a00", "limit": "#888888"}
 
 
+def _styled(fn):
+    """Run a plot function under the fixed SVG settings (paths are built while
+    plotting, so the settings must hold from the first line)."""
+
+    @functools.wraps(fn)
+    def run(*args, **kwargs):
+        import matplotlib
+
+        with matplotlib.rc_context({"svg.hashsalt": SALT, "svg.fonttype": "none", "svg.image_inline": True,
+                                    "path.simplify": False}):
+            return fn(*args, **kwargs)
+
+    return run
+
+
 def _figure(width_in=6.4, height_in=3.6):
     from matplotlib.figure import Figure
 
@@ -31,14 +47,12 @@ def _figure(width_in=6.4, height_in=3.6):
 
 
 def _to_svg(fig, name: str) -> str:
-    import matplotlib
     from matplotlib.backends.backend_svg import FigureCanvasSVG
 
     FigureCanvasSVG(fig)
     buf = io.StringIO()
-    with matplotlib.rc_context({"svg.hashsalt": SALT, "svg.fonttype": "none", "svg.image_inline": True}):
-        fig.savefig(buf, format="svg", metadata={"Date": None, "Creator": None, "Format": None, "Type": None},
-                    bbox_inches=None)
+    fig.savefig(buf, format="svg", metadata={"Date": None, "Creator": None, "Format": None, "Type": None},
+                bbox_inches=None)
     svg = buf.getvalue()
     # ids unique within a page that holds several plots
     svg = re.sub(r'id="([^"]+)"', lambda m: f'id="{name}-{m.group(1)}"' if not m.group(1).startswith(name + "-")
@@ -56,6 +70,7 @@ def _series(ax, name, plot, x, y, **kw):
     return line
 
 
+@_styled
 def sun_rotation_svg(curves: list[tuple[str, np.ndarray, np.ndarray]], travel_limit_deg: float,
                      title: str) -> str:
     """The ideal rotation against the solar hour for each day, travel limits shaded.
@@ -84,6 +99,7 @@ def sun_rotation_svg(curves: list[tuple[str, np.ndarray, np.ndarray]], travel_li
     return _to_svg(fig, plot)
 
 
+@_styled
 def load_torque_svg(angles_deg: np.ndarray, gravity_Nm: np.ndarray, friction_Nm: float, wind_Nm: float,
                     available_Nm: float, title: str) -> str:
     """Load torque at the axle against the frame angle for a turn in the +
@@ -117,6 +133,7 @@ def load_torque_svg(angles_deg: np.ndarray, gravity_Nm: np.ndarray, friction_Nm:
     return _to_svg(fig, plot)
 
 
+@_styled
 def pulse_step_svg(angles_deg, calm_plus, calm_minus, wind_plus, wind_minus, max_step_deg: float,
                    title: str) -> str:
     """Angle turned by one pulse against the frame angle it starts from, in
