@@ -146,6 +146,30 @@ def start_voltage_V(drive: Drive, load: AxleLoad, travel_limit_deg: float, n: in
     return need / (drive.efficiency * drive.ratio) * m.resistance_ohm / m.k_Nm_A
 
 
+def free_run_deg(load: AxleLoad, travel_limit_deg: float, step_deg: float = 0.1) -> float:
+    """The longest way gravity alone carries the frame once a pulse has set it
+    moving, over starts in the travel and both senses.
+
+    The frame can only come to rest where gravity along the motion is at most
+    the bearing's hold (the drive at rest only pushes forward: the capacitor
+    voltage never goes below 0, and with the frame at rest its current cannot
+    brake). So from a start where gravity along the motion beats the bearing,
+    a pulse turns the frame at least to the first angle where it no longer does
+    (or to the travel end), whatever the capacitor, voltage or ratio."""
+    th = np.arange(-travel_limit_deg, travel_limit_deg + step_deg / 2, step_deg)
+    g = load.unbalance_Nm * np.sin(np.radians(load.cg_angle_deg + th))
+    best = 0.0
+    for s in (1, -1):
+        pull = s * g - load.wind_Nm > load.friction_Nm  # gravity along the motion beats the bearing
+        order = th if s == 1 else th[::-1]
+        p = pull if s == 1 else pull[::-1]
+        run = 0.0
+        for j in range(len(order) - 1, -1, -1):
+            run = (run + step_deg) if p[j] else 0.0
+            best = max(best, run)
+    return best
+
+
 def _bisect(f, lo, hi, iters=40, rel=0.002):
     """Largest x in [lo, hi] with f(x) true, f monotone (true below, false above);
     geometric bisection. f(lo) must be true."""
@@ -182,8 +206,10 @@ def pulse_fixes(drive: Drive, calm: AxleLoad, wind: AxleLoad, capacitance_F: flo
     repeated on it and each fix says to fit the counterweight first."""
     if sweep.calm_max_deg <= max_step_deg and sweep.wind_min_deg > 0.0 and not sweep.unsure:
         return ()
-    found = _fixes(drive, calm, wind, capacitance_F, voltage_V, travel_limit_deg, max_step_deg, sweep,
-                   pinion_teeth, max_wheel_teeth, "")
+    found: tuple[PulseFix, ...] = ()
+    if free_run_deg(calm, travel_limit_deg) <= max_step_deg:
+        found = _fixes(drive, calm, wind, capacitance_F, voltage_V, travel_limit_deg, max_step_deg, sweep,
+                       pinion_teeth, max_wheel_teeth, "")
     if found or balanced is None:
         return found
     bdrive, bcalm, bwind, phrase = balanced
@@ -245,11 +271,15 @@ def _fixes(drive, calm, wind, capacitance_F, voltage_V, travel_limit_deg, max_st
                                       "which starts the frame in the design wind)"))
         # ratio: more wheel teeth (the step need not fall steadily with the ratio: walk up)
         wheel0 = round(drive.ratio * pinion_teeth)
+        last = sweep.calm_max_deg
         for wheel in _teeth_ladder(wheel0, max_wheel_teeth):
             d = replace(drive, ratio=wheel / pinion_teeth)
             got = worst_calm(d, capacitance_F, voltage_V, sweep.calm_max_at)
             if math.isinf(got):
                 break  # the drive grows too stiff for the explicit integrator: stop looking
+            if wheel >= 2 * wheel0 and got >= 0.95 * last:
+                break  # twice the ratio and the step hardly falls: the ratio is not the lever here
+            last = got
             if got <= max_step_deg:
                 s, ok = verified(d, capacitance_F, voltage_V)
                 if ok:
