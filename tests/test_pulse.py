@@ -298,3 +298,19 @@ def test_plate_inertia_about_the_axle_does_not_change_as_it_turns(angle, y, z):
     part = _plate_part(40, 30, 3, pl, holes=(box(5, 5, 15, 12),))
     turned = Part("p", part.outline, 3, "mdf", 1, (pl.turned(angle),))
     assert part_inertia_x_kgm2(turned) == pytest.approx(part_inertia_x_kgm2(part), rel=1e-9)
+
+
+def test_free_run_is_where_gravity_stops_beating_the_bearing():
+    # gravity A sin(psi0 + theta) beats the bearing's hold T_f while
+    # sin(psi0 + theta) > T_f / A: from theta = asin(T_f / A) - psi0 up to the travel end
+    # (turning +); the arcsine bounds it in closed form
+    A, psi0, tf, lim = 0.02, 20.0, 0.005, 60.0
+    load = AxleLoad(A, psi0, tf)
+    start = math.degrees(math.asin(tf / A)) - psi0
+    ref = lim - start
+    assert drv.free_run_deg(load, lim, 0.01) == pytest.approx(ref, abs=0.02)
+    # a balanced frame is carried nowhere
+    assert drv.free_run_deg(AxleLoad(0.0, 0.0, tf), lim) == 0.0
+    # and a pulse from that start turns the frame at least that far, whatever the capacitor
+    r = run_pulse(DRIVE, load, 1e-6, 5.0, start + 0.5, 1, travel_deg=lim - start - 0.5)
+    assert r.ended == "travel"

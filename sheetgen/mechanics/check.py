@@ -90,8 +90,8 @@ class BalanceReport:
     checks: tuple[Check, ...]
     material: str
     notes: tuple[str, ...] = field(default=())
-    _pulse_c_uF: float = 0.0
-    _pulse_v: float = 0.0
+    pulse_capacitance_uF: float = 0.0
+    pulse_voltage_V: float = 0.0
 
     @property
     def ok(self) -> bool:
@@ -186,7 +186,7 @@ class BalanceReport:
                 "friction_calm_Nm": sig(self.calm_load.friction_Nm),
             },
             "pulse": None if sw is None else {
-                "energy_J": sig(loads.capacitor_energy_J(self._pulse_c_uF, self._pulse_v)),
+                "energy_J": sig(loads.capacitor_energy_J(self.pulse_capacitance_uF, self.pulse_voltage_V)),
                 "max_step_deg": sig(dtm.max_step_deg),
                 "start_angles_deg": [sig(a) for a in sw.angles_deg],
                 "calm_plus_deg": steps(sw.calm_plus_deg),
@@ -442,7 +442,7 @@ def balance_check(kit: Kit, spec) -> BalanceReport:
         wind=wind, load_torque_Nm=load, drive=df, year=year, drive_time=dtm, calm_load=calm_load,
         wind_load=wind_load, tooth=tooth, tipping=tipping,
         counterweight=cw, checks=tuple(checks), material=spec.sheet.material, notes=tuple(notes),
-        _pulse_c_uF=drive.pulse_capacitance_uF, _pulse_v=drive.pulse_voltage_V,
+        pulse_capacitance_uF=drive.pulse_capacitance_uF, pulse_voltage_V=drive.pulse_voltage_V,
     )
 
 
