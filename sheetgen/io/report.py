@@ -88,7 +88,6 @@ def render_report(build, assembly_svg: str | None = None) -> str:
            )),
            "</div>"]
     out += _checks(build)
-    out += _drive(build)
     out += ["<h2>Sheets</h2>",
             "<p><small>Drawn to scale; the dashed line is the sheet margin. Each sheet's DXF lists the "
             "contours in cut order: holes and nested parts before the outlines around them.</small></p>"]
@@ -100,6 +99,7 @@ def render_report(build, assembly_svg: str | None = None) -> str:
     out += _bom(build)
     out += _gears(build)
     out += _cut_table(build)
+    out += _drive(build)
     if "assembly" in build.summary:
         out += _assembly(build.summary["assembly"], assembly_svg)
     out += ["<h2>Safety</h2>"]
@@ -182,8 +182,9 @@ def _drive(build):
             for f in pulse["fixes"]) + ".</p>")
     for key, caption, svg in drive_plots(build.balance):
         body = svg.split("?>", 1)[1] if svg.startswith("<?xml") else svg
-        body = body.split("<svg", 1)
-        out.append(f'<figure class="plot" id="plot-{key}"><svg{body[1]}<figcaption><small>{escape(caption)}'
+        # inline in HTML the parser knows the SVG and xlink namespaces: drop the declarations' URLs
+        body = "<svg" + body.split("<svg", 1)[1].replace(' xmlns:xlink="http://www.w3.org/1999/xlink"', "")
+        out.append(f'<figure class="plot" id="plot-{key}">{body}<figcaption><small>{escape(caption)}'
                    "</small></figcaption></figure>")
     out += [_table(head, rows, num=(1, 2, 3)),
             "<p><small>Rotation the sun asks of the frame at each whole solar hour while the sun is up "

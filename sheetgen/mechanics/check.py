@@ -200,8 +200,9 @@ class BalanceReport:
                 "runs_to_travel_end": sw.runs_to_end,
                 "held_by_gearbox": sw.held_by_gearbox,
                 "longest_pulse_s": sig(sw.longest_pulse_s),
-                "pulses_per_hour_peak": (None if sw.wind_min_deg <= 0 else
-                                         sig(y.peak_rate_deg_h / min(sw.wind_min_deg, dtm.max_step_deg))),
+                # pulses an hour at the year's peak rate if every pulse made the design-wind's smallest step
+                "pulses_per_hour_peak_wind": (None if sw.wind_min_deg <= 0 else
+                                              sig(y.peak_rate_deg_h / sw.wind_min_deg)),
                 "fixes": [{"change": f.change, "key": f.key, "value": sig(f.value), "unit": f.unit,
                            "calm_max_deg": sig(f.calm_max_deg), "wind_min_deg": sig(f.wind_min_deg),
                            "text": f.text} for f in dtm.fixes],
