@@ -314,3 +314,18 @@ def test_free_run_is_where_gravity_stops_beating_the_bearing():
     # and a pulse from that start turns the frame at least that far, whatever the capacitor
     r = run_pulse(DRIVE, load, 1e-6, 5.0, start + 0.5, 1, travel_deg=lim - start - 0.5)
     assert r.ended == "travel"
+
+
+@settings(max_examples=25, deadline=None)
+@given(start=st.floats(-60, 60), psi0=st.floats(-90, 90), unbalance=st.floats(0, 2000),
+       wind=st.floats(0, 0.03), cap_uF=st.floats(50, 3000))
+def test_mirrored_frame_mirrors_the_pulse(start, psi0, unbalance, wind, cap_uF):
+    # mirror symmetry of the equations: the frame with its CG at -psi0 turning - from -start
+    # is the frame at psi0 turning + from start, so the steps are equal
+    a = AxleLoad.from_unbalance(unbalance, psi0, 0.0, 0.008, wind)
+    b = AxleLoad.from_unbalance(unbalance, -psi0, 0.0, 0.008, wind)
+    ra = run_pulse(DRIVE, a, cap_uF * 1e-6, 5.0, start, 1, travel_deg=60.0 - start)
+    rb = run_pulse(DRIVE, b, cap_uF * 1e-6, 5.0, -start, -1, travel_deg=60.0 - start)
+    assert ra.ended == rb.ended
+    assert rb.step_deg == pytest.approx(ra.step_deg, rel=1e-6, abs=1e-9)
+    assert ra.step_deg <= 60.0 - start + 1e-9
