@@ -315,6 +315,10 @@ def run_pulse(drive: Drive, load: AxleLoad, capacitance_F: float, voltage_V: flo
         mesh = tm * N * w - ta * w
         return np.array((0.0 if steady else -i / C, w, acc, i * i * R, mesh))
 
+    if travel_deg <= 0.0:
+        # already at the travel end it would run into
+        return PulseResult(start_deg, direction, 0.0, 0.0, voltage_V, False, False, "travel",
+                           0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0, None)
     if net_at_rest(voltage_V, 0.0) <= tf:
         # the drive cannot overcome the static load: the frame does not move
         return PulseResult(start_deg, direction, 0.0, 0.0, voltage_V, False,
