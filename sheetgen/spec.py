@@ -149,6 +149,7 @@ SCHEMA: tuple[Key, ...] = (
     _k("drive.pulse_capacitance", "pulse_capacitance_uF", float, 0.0, "µF",
        "Capacitor dumped into the motor per pulse (0: continuous drive).", 0, 1e6),
     _k("drive.pulse_voltage", "pulse_voltage_V", float, 0.0, "V", "Voltage the capacitor is charged to.", 0, 60),
+    _k("drive.max_step", "max_step_deg", float, 5.0, "deg", "Largest axle turn one pulse may make in calm air (5: a flat panel then points within 5 deg of the sun and loses under 0.4 %, 1 - cos 5 deg; a flat panel's acceptance is several degrees, common practice).", 0.1, 90),
     # site --------------------------------------------------------------
     _k("site.latitude", "latitude_deg", float, REQUIRED, "deg", "Site latitude (north positive).", -66, 66),
     _k("site.axle", "axle", str, "horizontal", "-", "Axle arrangement: horizontal north-south, or polar (tilted at the latitude).",

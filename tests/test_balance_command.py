@@ -76,3 +76,39 @@ def test_command_object_raises_sheetgen_error():
     # the command itself raises; the group turns it into exit code 2
     res = CliRunner().invoke(command, [str(DEMO), "--set", "site.latitude=80"])
     assert isinstance(res.exception, SheetgenError)
+
+
+NEW_KEYS = ("pulse_step_calm_deg", "pulse_step_wind_deg", "peak_tracking_rate_deg_per_h", "shortest_day_tracked_h")
+
+
+def test_json_and_table_carry_the_drive_and_year_figures(group):
+    res = CliRunner().invoke(group, ["balance", str(DEMO), "--json"])
+    j = json.loads(res.output)
+    for k in NEW_KEYS:
+        assert isinstance(j[k], float), k
+    # the figures are the extremes of the pulse table the JSON also carries
+    p = j["pulse"]
+    calm = [v for v in p["calm_plus_deg"] + p["calm_minus_deg"] if v is not None]
+    wind = [v for v in p["wind_plus_deg"] + p["wind_minus_deg"] if v is not None]
+    assert j["pulse_step_calm_deg"] == max(calm) and j["pulse_step_wind_deg"] == min(wind)
+    assert j["peak_tracking_rate_deg_per_h"] == j["year"]["peak_rate_deg_h"]
+    names = [c["name"] for c in j["checks"]]
+    assert "pulse step in calm air" in names and "pulse moves the frame in the design wind" in names
+    text = CliRunner().invoke(group, ["balance", str(DEMO)]).output
+    for label in ("angle per pulse, calm (largest)", "angle per pulse, design wind (smallest)",
+                  "peak tracking rate over the year", "tracked on the shortest day"):
+        assert label in text
+
+
+def test_continuous_drive_has_no_pulse_figures(group):
+    res = CliRunner().invoke(group, ["balance", str(DEMO), "--json", "--set", "drive.pulse_capacitance=0",
+                                     "--set", "drive.pulse_voltage=0"])
+    j = json.loads(res.output)
+    assert j["pulse_step_calm_deg"] is None and j["pulse_step_wind_deg"] is None and j["pulse"] is None
+    assert j["continuous_drive"]["crossing_time_s"] > 0
+    assert not any(c["name"].startswith("pulse") for c in j["checks"])
+
+
+def test_max_step_key_is_checked(group):
+    res = CliRunner().invoke(group, ["balance", str(DEMO), "--set", "drive.max_step=0"])
+    assert res.exit_code == 2 and "drive.max_step" in res.output

@@ -252,52 +252,6 @@ def test_capacitor_energy_common_practice():
     assert loads.capacitor_energy_J(1000.0, 24.0) == pytest.approx(0.288)
 
 
-def _simulate_pulse(c_F, v0, stall_Nm, rated_V, no_load_rad_s, load_Nm, inertia_s=2e-4):
-    """Capacitor into an ideal DC motor against a steady (friction-like) load, integrated
-    step by step from the circuit and motion equations (Kirchhoff: V = I R + k w,
-    Newton: J dw/dt = k I - T; common practice): returns the shaft angle turned."""
-    k = rated_V / no_load_rad_s
-    R = k * rated_V / stall_Nm
-    J = inertia_s * k * k / R  # mechanical time constant J R / k^2 = inertia_s
-    v, w, ang = v0, 0.0, 0.0
-    dt = inertia_s / 20
-    moved = False
-    for _ in range(200000):
-        i = (v - k * w) / R
-        drive = k * i
-        if w <= 0.0 and drive <= load_Nm:
-            if moved:
-                break
-            w = 0.0
-            acc = 0.0
-        else:
-            acc = (drive - load_Nm) / J
-            moved = True
-        v -= i / c_F * dt
-        w = max(0.0, w + acc * dt)
-        ang += w * dt
-    return ang
-
-
-def test_pulse_angle_against_a_step_by_step_simulation():
-    # our closed form (work C (V - V_min)^2 / 2) against integrating the circuit and
-    # the rotor step by step with a small rotor inertia
-    c_uF, v0, stall, rated, n0 = 4700.0, 5.5, 0.08, 5.0, 150.0
-    t_motor = 0.03
-    ratio, eff = 3.0, 0.85
-    t_axle = t_motor * ratio * eff
-    p = loads.pulse_figures(c_uF, v0, t_axle, t_motor, stall, rated, eff, 15.0, 12.0)
-    shaft = _simulate_pulse(c_uF * 1e-6, v0, stall, rated, n0 * 2 * math.pi / 60, t_motor)
-    assert math.radians(p.angle_per_pulse_deg) == pytest.approx(shaft / ratio, rel=0.01)
-    assert p.threshold_voltage_V == pytest.approx(rated * t_motor / stall)
-    assert p.pulses_per_hour_peak == pytest.approx(15.0 / p.angle_per_pulse_deg)
-
-
-def test_pulse_below_threshold_does_not_move():
-    p = loads.pulse_figures(1000.0, 2.0, 0.1, 0.05, 0.08, 5.0, 0.85, 15.0, 12.0)
-    assert not p.moves and p.angle_per_pulse_deg == 0.0
-
-
 # ---------------------------------------------------------------------------
 # teeth
 
@@ -423,7 +377,8 @@ def test_demo_report_is_consistent():
 
 def test_failing_variants_say_which_check_and_why():
     # a strong drive and a tooth safety factor of 20: only the tooth check fails
-    strong = [("drive.wheel_teeth", 72), ("motor.usable_fraction", 0.9), ("motor.stall_torque", 0.5)]
+    strong = [("drive.wheel_teeth", 72), ("motor.usable_fraction", 0.9), ("motor.stall_torque", 0.5),
+              ("drive.pulse_capacitance", 0.0), ("drive.pulse_voltage", 0.0)]
     r = _report(_demo_doc(), strong + [("check.tooth_safety", 20.0)])
     failed = [c for c in r.checks if c.binding and not c.passed]
     assert not r.ok and [c.name for c in failed] == ["tooth stress"]
@@ -434,3 +389,23 @@ def test_failing_variants_say_which_check_and_why():
     failed = {c.name: c for c in r.checks if c.binding and not c.passed}
     assert not r.ok and "motor torque" in failed
     assert "needs" in failed["motor torque"].reason and "gear ratio" in failed["motor torque"].reason
+
+
+def test_demo_pulse_fix_passes_when_built_in():
+    # check the machine: the change the failing pulse check names (the counterweight,
+    # then a smaller capacitor) is put into the parameters and the kit checked again
+    doc = _demo_doc()
+    r = _report(doc)
+    step = next(c for c in r.checks if c.name == "pulse step in calm air")
+    assert not step.passed and "would pass" in step.reason
+    fix = r.drive_time.fixes[0]
+    assert fix.key == "drive.pulse_capacitance" and "counterweight" in fix.text
+    cw = r.counterweight
+    doc["rotating_mass"] = list(doc.get("rotating_mass", [])) + [
+        {"name": "counterweight", "mass_kg": cw.mass_kg, "position_mm": list(cw.position_mm)}]
+    doc["drive"]["pulse_capacitance"] = fix.value
+    again = _report(doc)
+    checks = {c.name: c for c in again.checks}
+    assert checks["pulse step in calm air"].passed, checks["pulse step in calm air"].reason
+    assert checks["pulse moves the frame in the design wind"].passed
+    assert again.pulse_step_calm_deg <= doc["drive"].get("max_step", 5.0)

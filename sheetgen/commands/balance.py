@@ -1,6 +1,8 @@
 """``sheetgen balance PARAMS``: mass, balance, torques and the drive check.
 
-Prints a readable table, or with ``--json`` one JSON object on stdout. The
+Prints a readable table, or with ``--json`` one JSON object on stdout
+(among its keys ``pulse_step_calm_deg``, ``pulse_step_wind_deg``,
+``peak_tracking_rate_deg_per_h`` and ``shortest_day_tracked_h``). The
 verdict is data: exit code 0 whether or not the design passes; bad input
 raises SheetgenError (exit code 2 through the CLI group).
 """
@@ -20,7 +22,9 @@ from sheetgen.cli import set_option
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object instead of the table.")
 def command(params: str, overrides: tuple[str, ...], as_json: bool) -> None:
     """Check the turning frame's balance, the torque the drive needs and has,
-    the tooth stress, the counterweight and the ballast for the design wind.
+    the angle one capacitor pulse turns the frame (calm air and design wind),
+    the tracking rate over the year, the tooth stress, the counterweight and
+    the ballast for the design wind.
 
     Anything larger than a desk kit: wind and snow loads follow local codes
     (for example ASCE 7, EN 1991-1-4) and a licensed engineer.

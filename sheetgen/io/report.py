@@ -35,6 +35,7 @@ th{background:#f7f4ef;font-weight:600} td.num{text-align:right;font-variant-nume
 .figure span{font-size:12px;color:#5b6570}
 .sheet{margin:14px 0 22px} .sheet svg{width:100%;height:auto;border:1px solid #ddd;background:#fff}
 .model svg{max-width:100%;height:auto}
+figure.plot{margin:14px 0} figure.plot svg{max-width:100%;height:auto}
 .caution{background:#fff6e0;border-left:4px solid #e0a100;padding:8px 12px;margin:6px 0}
 small{color:#5b6570}
 """
@@ -98,6 +99,7 @@ def render_report(build, assembly_svg: str | None = None) -> str:
     out += _bom(build)
     out += _gears(build)
     out += _cut_table(build)
+    out += _drive(build)
     if "assembly" in build.summary:
         out += _assembly(build.summary["assembly"], assembly_svg)
     out += ["<h2>Safety</h2>"]
@@ -138,6 +140,57 @@ def _checks(build):
     return ["<h2>Balance, torque and strength checks</h2>",
             _table(("check", "verdict", "why"), rows),
             _table(("figure", "value"), [(escape(k), escape(v)) for k, v in figures])]
+
+
+def _drive(build):
+    """Drive in time and tracking through the year: figures, hourly table, plots."""
+    from sheetgen.mechanics.plots import drive_plots
+
+    b = build.summary["balance"]
+    y, cd, pulse = b["year"], b["continuous_drive"], b["pulse"]
+    shortest = next(d for d in y["days"] if d["name"] == y["shortest_day"])
+    figures = [("peak tracking rate over the year", f"{b['peak_tracking_rate_deg_per_h']:.1f} deg/h"),
+               (f"tracked on the shortest day ({y['shortest_day']})",
+                f"{b['shortest_day_tracked_h']:.1f} of {shortest['day_length_h']:.1f} h")]
+    if pulse is not None:
+        figures += [("angle per pulse, calm air (largest)", f"{b['pulse_step_calm_deg']:.3g} deg"),
+                    ("angle per pulse, design wind (smallest)", f"{b['pulse_step_wind_deg']:.3g} deg"),
+                    ("largest step allowed (drive.max_step)", f"{pulse['max_step_deg']:g} deg")]
+    figures += [("steady drive: axle speed under the worst load", f"{cd['steady_speed_deg_h']:,.0f} deg/h"),
+                ("steady drive: time across the travel",
+                 "does not cross" if cd["crossing_time_s"] is None else f"{cd['crossing_time_s']:.3g} s")]
+    head = ["solar hour"] + [f"{d['name']}: rotation deg (deg/h)" for d in y["days"]]
+    hours = sorted({h for d in y["days"] for h in d["hours"]})
+    rows = []
+    for h in hours:
+        cells = [f"{h:02.0f}:00"]
+        for d in y["days"]:
+            if h in d["hours"]:
+                i = d["hours"].index(h)
+                cells.append(f"{d['rotation_deg'][i]:+.1f} ({d['rate_deg_h'][i]:.1f})")
+            else:
+                cells.append("–")
+        rows.append(cells)
+    out = ["<h2>Drive in time and tracking through the year</h2>",
+           "<div class=\"figures\">",
+           *(f'<div class="figure"><b>{escape(v)}</b><span>{escape(k)}</span></div>' for k, v in figures),
+           "</div>"]
+    out += [f'<p class="note">{escape(w)}</p>' for w in y["warnings"]]
+    if pulse is not None and pulse["fixes"]:
+        out.append("<p>Would pass the pulse checks: " + "; ".join(
+            escape(f"{f['text']} ({f['calm_max_deg']:.3g} deg calm, {f['wind_min_deg']:.3g} deg in the design wind)")
+            for f in pulse["fixes"]) + ".</p>")
+    for key, caption, svg in drive_plots(build.balance):
+        body = svg.split("?>", 1)[1] if svg.startswith("<?xml") else svg
+        # inline in HTML the parser knows the SVG and xlink namespaces: drop the declarations' URLs
+        body = "<svg" + body.split("<svg", 1)[1].replace(' xmlns:xlink="http://www.w3.org/1999/xlink"', "")
+        out.append(f'<figure class="plot" id="plot-{key}">{body}<figcaption><small>{escape(caption)}'
+                   "</small></figcaption></figure>")
+    out += [_table(head, rows, num=(1, 2, 3)),
+            "<p><small>Rotation the sun asks of the frame at each whole solar hour while the sun is up "
+            "(positive toward the afternoon), and how fast it is turning then. Keep hands clear of the gears and "
+            "the frame while the drive is powered; an outdoor tracker must be secured against wind.</small></p>"]
+    return out
 
 
 def _assembly(a: dict, picture: str | None):

@@ -21,7 +21,10 @@ from shapely.ops import unary_union
 from sheetgen.numbers import sig
 from sheetgen.errors import ParameterError
 from sheetgen.gears import LEWIS_Y_TABLE
-from sheetgen.mechanics import loads, solar
+from sheetgen.mechanics import loads, solar, tracking
+from sheetgen.mechanics.drive import DriveTime, drive_time
+from sheetgen.mechanics.inertia import frame_inertia_kgm2
+from sheetgen.mechanics.pulse import AxleLoad, Motor
 from sheetgen.mechanics.massprops import Counterweight, MassProperties, mass_properties, suggest_counterweight
 from sheetgen.mechanics.materials import sheet_material
 from sheetgen.part import Kit
@@ -77,22 +80,49 @@ class BalanceReport:
     wind: WindPlate
     load_torque_Nm: float
     drive: loads.DriveFigures
-    pulse: loads.PulseFigures | None
+    year: tracking.YearTracking
+    drive_time: DriveTime
+    calm_load: AxleLoad  # what resists the frame in calm air (for the pulse model and the plots)
+    wind_load: AxleLoad  # ... in the design wind
     tooth: loads.ToothFigures
     tipping: loads.TippingFigures
     counterweight: Counterweight
     checks: tuple[Check, ...]
     material: str
     notes: tuple[str, ...] = field(default=())
+    pulse_capacitance_uF: float = 0.0
+    pulse_voltage_V: float = 0.0
 
     @property
     def ok(self) -> bool:
         return all(c.passed for c in self.checks if c.binding)
 
+    @property
+    def pulse_step_calm_deg(self) -> float | None:
+        """Largest step one pulse makes in calm air over the travel (None: continuous drive)."""
+        sw = self.drive_time.sweep
+        return None if sw is None else sw.calm_max_deg
+
+    @property
+    def pulse_step_wind_deg(self) -> float | None:
+        """Smallest step one pulse makes in the design wind over the travel."""
+        sw = self.drive_time.sweep
+        return None if sw is None else sw.wind_min_deg
+
     def to_json(self) -> dict:
         m, tr, d, t = self.mass, self.tracking, self.drive, self.tooth
+        y, dtm = self.year, self.drive_time
+        sw, cd = dtm.sweep, dtm.continuous
+
+        def steps(vals):
+            return [None if math.isnan(v) else sig(v) for v in vals]
+
         out = {
             "ok": self.ok,
+            "pulse_step_calm_deg": None if sw is None else sig(sw.calm_max_deg),
+            "pulse_step_wind_deg": None if sw is None else sig(sw.wind_min_deg),
+            "peak_tracking_rate_deg_per_h": sig(y.peak_rate_deg_h),
+            "shortest_day_tracked_h": sig(y.shortest_day.tracked_h),
             "rotating_mass_kg": sig(m.rotating_mass_kg),
             "cg_mm": [sig(v) for v in m.rotating_cg_mm],
             "static_unbalance_gmm": sig(m.static_unbalance_gmm),
@@ -149,14 +179,51 @@ class BalanceReport:
                 "output_speed_deg_h": sig(d.output_speed_deg_h),
                 "output_speed_no_load_deg_h": sig(d.output_speed_no_load_deg_h),
             },
-            "pulse": None if self.pulse is None else {
-                "energy_J": sig(self.pulse.energy_J),
-                "threshold_voltage_V": sig(self.pulse.threshold_voltage_V),
-                "motor_efficiency": sig(self.pulse.motor_efficiency),
-                "work_per_pulse_J": sig(self.pulse.work_per_pulse_J),
-                "angle_per_pulse_deg": sig(self.pulse.angle_per_pulse_deg),
-                "pulses_per_hour_peak": sig(self.pulse.pulses_per_hour_peak),
-                "pulses_per_hour_mean": sig(self.pulse.pulses_per_hour_mean),
+            "motor_model": {
+                "torque_constant_Nm_A": sig(dtm.motor_k_Nm_A),
+                "winding_resistance_ohm": sig(dtm.motor_resistance_ohm),
+                "frame_inertia_kgm2": sig(dtm.frame_inertia_kgm2),
+                "friction_calm_Nm": sig(self.calm_load.friction_Nm),
+            },
+            "pulse": None if sw is None else {
+                "energy_J": sig(loads.capacitor_energy_J(self.pulse_capacitance_uF, self.pulse_voltage_V)),
+                "max_step_deg": sig(dtm.max_step_deg),
+                "start_angles_deg": [sig(a) for a in sw.angles_deg],
+                "calm_plus_deg": steps(sw.calm_plus_deg),
+                "calm_minus_deg": steps(sw.calm_minus_deg),
+                "wind_plus_deg": steps(sw.wind_plus_deg),
+                "wind_minus_deg": steps(sw.wind_minus_deg),
+                "calm_max_at": {"start_deg": sig(sw.calm_max_at[0]), "direction": sw.calm_max_at[1]},
+                "wind_min_at": {"start_deg": sig(sw.wind_min_at[0]), "direction": sw.wind_min_at[1]},
+                "at_rest_deg": {k: steps(v) for k, v in sw.at_rest.items()},
+                "at_travel_ends_deg": {k: steps(v) for k, v in sw.at_ends.items()},
+                "runs_to_travel_end": sw.runs_to_end,
+                "held_by_gearbox": sw.held_by_gearbox,
+                "longest_pulse_s": sig(sw.longest_pulse_s),
+                # pulses an hour at the year's peak rate if every pulse made the design-wind's smallest step
+                "pulses_per_hour_peak_wind": (None if sw.wind_min_deg <= 0 else
+                                              sig(y.peak_rate_deg_h / sw.wind_min_deg)),
+                "fixes": [{"change": f.change, "key": f.key, "value": sig(f.value), "unit": f.unit,
+                           "calm_max_deg": sig(f.calm_max_deg), "wind_min_deg": sig(f.wind_min_deg),
+                           "text": f.text} for f in dtm.fixes],
+            },
+            "continuous_drive": {
+                "voltage_V": sig(cd.voltage_V),
+                "steady_speed_deg_h": sig(cd.steady_speed_deg_h),
+                "crossing_time_s": sig(cd.crossing_time_s) if cd.crosses else None,
+                "crossing_time_steady_s": sig(cd.crossing_time_steady_s) if cd.crossing_time_steady_s < math.inf
+                else None,
+            },
+            "year": {
+                "peak_rate_deg_h": sig(y.peak_rate_deg_h),
+                "peak_declination_deg": sig(y.peak_declination_deg),
+                "shortest_day": y.shortest_day.name,
+                "days": [{"name": dd.name, "declination_deg": sig(dd.declination_deg),
+                          "day_length_h": sig(dd.day_length_h), "tracked_h": sig(dd.tracked_h),
+                          "peak_rate_deg_h": sig(dd.peak_rate_deg_h), "hours": [sig(h) for h in dd.hours],
+                          "rotation_deg": [sig(r) for r in dd.rotation_deg],
+                          "rate_deg_h": [sig(r) for r in dd.rate_deg_h]} for dd in y.days],
+                "warnings": list(y.warnings),
             },
             "tooth": {
                 "material": self.material,
@@ -291,18 +358,17 @@ def balance_check(kit: Kit, spec) -> BalanceReport:
         notes.append(f"polar axle: {axial:.3g} N along the axle bear on a thrust face taken at a friction radius "
                      f"of {THRUST_RADIUS_AXLE_DIAMETERS:g} axle diameter")
 
+    friction_calm = loads.friction_torque_Nm(ax.friction, weight_N * math.cos(math.radians(tilt)), ax.diameter_mm)
+    if axial > 0:
+        friction_calm += ax.friction * axial * THRUST_RADIUS_AXLE_DIAMETERS * ax.diameter_mm * 1e-3
+
     load = g_max + friction + wind.torque_Nm
 
     # drive
     df = loads.drive_figures(load, drive.pinion_teeth, drive.wheel_teeth, drive.efficiency,
                              motor.stall_torque_Nm, motor.usable_fraction, motor.no_load_speed_rpm)
-    pulse = None
+    year = tracking.year_tracking(site.latitude_deg, site.axle, site.travel_limit_deg, df.output_speed_deg_h)
     if drive.pulse_capacitance_uF > 0:
-        span = tr.range_deg[1] - tr.range_deg[0]
-        mean_rate = span / tr.tracked_hours_h if tr.tracked_hours_h > 0 else 0.0
-        pulse = loads.pulse_figures(drive.pulse_capacitance_uF, drive.pulse_voltage_V, load,
-                                    df.motor_torque_required_Nm, motor.stall_torque_Nm, motor.voltage_V,
-                                    drive.efficiency, tr.peak_rate_deg_h, mean_rate)
         if drive.pulse_voltage_V > 1.2 * motor.voltage_V:
             notes.append(f"drive.pulse_voltage = {drive.pulse_voltage_V:g} V is more than 1.2 x the motor's "
                          f"rated {motor.voltage_V:g} V: check the motor tolerates it")
@@ -337,7 +403,35 @@ def balance_check(kit: Kit, spec) -> BalanceReport:
                      "needs its own anchoring")
 
     cw = suggest_counterweight(kit, mp, (-site.travel_limit_deg, site.travel_limit_deg), spec.frame.clearance_mm)
-    checks = _checks(spec, mp, tr, g_max, load, df, pulse, tooth, tipping, cw, mat.name)
+
+    # the drive in time: one pulse (or a steady supply) against these loads
+    inertia = frame_inertia_kgm2(kit)
+    calm_load = AxleLoad.from_unbalance(mp.static_unbalance_gmm, mp.cg_angle_deg, tilt, friction_calm)
+    wind_load = AxleLoad.from_unbalance(mp.static_unbalance_gmm, mp.cg_angle_deg, tilt, friction, wind.torque_Nm)
+    balanced = None
+    if cw.found and cw.mass_kg > 0 and mp.rotating_mass_kg > 0:
+        grow = (mp.rotating_mass_kg + cw.mass_kg) / mp.rotating_mass_kg
+        f_extra = (friction_calm) * (grow - 1.0)
+        balanced = (inertia + cw.mass_kg * (cw.arm_mm * 1e-3) ** 2,
+                    AxleLoad(0.0, 0.0, friction_calm + f_extra),
+                    AxleLoad(0.0, 0.0, friction + f_extra, wind.torque_Nm),
+                    f"fit the counterweight ({cw.mass_kg * 1000:.0f} g at {_pos(cw.position_mm)} mm)")
+    dtm = drive_time(Motor.from_ratings(motor.stall_torque_Nm, motor.no_load_speed_rpm, motor.voltage_V),
+                     df.gear_ratio, drive.efficiency, inertia, calm_load, wind_load,
+                     drive.pulse_capacitance_uF * 1e-6, drive.pulse_voltage_V, site.travel_limit_deg,
+                     drive.max_step_deg, load, drive.pinion_teeth, balanced)
+    sw = dtm.sweep
+    if sw is not None and sw.held_by_gearbox:
+        notes.append("some pulses end with gravity and wind turning the frame back harder than the bearing "
+                     "holds: the figures take the gear-motor's gearbox to hold it; balance the frame")
+    if sw is not None and sw.unsure:
+        notes.append("some pulses were still creeping when the integration stopped: their steps are lower bounds")
+    notes.append(f"pulse model: motor torque constant {dtm.motor_k_Nm_A:.3g} N·m/A and winding resistance "
+                 f"{dtm.motor_resistance_ohm:.3g} ohm from the rated voltage, stall torque and no-load speed "
+                 f"(straight motor line); frame inertia {inertia * 1e6:.0f} kg·mm² about the axle; the gear-motor's "
+                 "own rotor inertia is not known and left out")
+    notes.extend(year.warnings)
+    checks = _checks(spec, mp, tr, g_max, load, df, dtm, year, tooth, tipping, cw, mat.name)
     if tr.clipped:
         notes.append(f"the sun's path needs +-{tr.sunset_rotation_deg:.1f} deg; site.travel_limit = "
                      f"{tr.travel_limit_deg:g} deg follows it for {tr.tracked_hours_h:.1f} of "
@@ -346,12 +440,14 @@ def balance_check(kit: Kit, spec) -> BalanceReport:
         mass=mp, tracking=tr, axle_tilt_deg=tilt,
         gravity_torque_max_Nm=g_max, gravity_worst_rotation_deg=g_rot,
         radial_load_N=radial, axial_load_N=axial, friction_torque_Nm=friction,
-        wind=wind, load_torque_Nm=load, drive=df, pulse=pulse, tooth=tooth, tipping=tipping,
+        wind=wind, load_torque_Nm=load, drive=df, year=year, drive_time=dtm, calm_load=calm_load,
+        wind_load=wind_load, tooth=tooth, tipping=tipping,
         counterweight=cw, checks=tuple(checks), material=spec.sheet.material, notes=tuple(notes),
+        pulse_capacitance_uF=drive.pulse_capacitance_uF, pulse_voltage_V=drive.pulse_voltage_V,
     )
 
 
-def _checks(spec, mp, tr, g_max, load, df, pulse, tooth, tipping, cw, material_name) -> list[Check]:
+def _checks(spec, mp, tr, g_max, load, df, dtm, year, tooth, tipping, cw, material_name) -> list[Check]:
     out = []
     share = g_max / load if load > 0 else 0.0
     fix = ("raise the gear ratio (drive.wheel_teeth / drive.pinion_teeth), use a stronger motor"
@@ -369,21 +465,31 @@ def _checks(spec, mp, tr, g_max, load, df, pulse, tooth, tipping, cw, material_n
         (f"Lewis stress in the {tooth.weaker_gear} {tooth.stress_MPa:.3g} MPa vs {tooth.allowable_MPa:.3g} MPa "
          f"({material_name} bending strength / check.tooth_safety)")
         + ("" if ok else "; add drive.layers, a larger drive.module or more teeth")))
-    ok = df.output_speed_deg_h >= tr.peak_rate_deg_h
+    ok = df.output_speed_deg_h >= year.peak_rate_deg_h
     out.append(Check(
-        "tracking speed", ok, df.output_speed_deg_h, tr.peak_rate_deg_h, "deg/h",
+        "tracking speed", ok, df.output_speed_deg_h, year.peak_rate_deg_h, "deg/h",
         f"axle turns at {df.output_speed_deg_h:.4g} deg/h under load; the frame must follow up to "
-        f"{tr.peak_rate_deg_h:.3g} deg/h" + ("" if ok else "; the motor is too slow or too loaded")))
-    if pulse is not None:
-        ok = pulse.moves
+        f"{year.peak_rate_deg_h:.3g} deg/h over the year" + ("" if ok else "; the motor is too slow or too loaded")))
+    sw = dtm.sweep
+    if sw is not None:
+        fixes = "; ".join(f"{f.text} gives {f.calm_max_deg:.3g} deg in calm air and {f.wind_min_deg:.3g} deg "
+                          f"in the design wind" for f in dtm.fixes)
+        fix_text = ("; would pass: " + fixes) if fixes else (
+            "; no capacitance, voltage or wheel teeth found that pass: balance the frame or change the motor")
+        ok = sw.wind_min_deg > 0.0
+        where = f"from {sw.wind_min_at[0]:g} deg turning {'+' if sw.wind_min_at[1] > 0 else '-'}"
         out.append(Check(
-            "pulse moves the frame", ok, spec.drive.pulse_voltage_V, pulse.threshold_voltage_V, "V",
-            (f"the capacitor at {spec.drive.pulse_voltage_V:g} V drives the load down to "
-             f"{pulse.threshold_voltage_V:.3g} V: {pulse.angle_per_pulse_deg:.3g} deg per pulse, "
-             f"{pulse.pulses_per_hour_peak:.3g} pulses/h at the fastest")
-            if ok else
-            (f"the motor stalls below {pulse.threshold_voltage_V:.3g} V on this load, above the "
-             f"{spec.drive.pulse_voltage_V:g} V pulse; raise drive.pulse_voltage or lower the load")))
+            "pulse moves the frame in the design wind", ok, sw.wind_min_deg, 0.0, "deg",
+            (f"one pulse turns the frame at least {sw.wind_min_deg:.3g} deg in the design wind ({where})"
+             if ok else f"one pulse does not start the frame in the design wind {where}" + fix_text)))
+        ok = sw.calm_max_deg <= dtm.max_step_deg
+        where = f"from {sw.calm_max_at[0]:g} deg turning {'+' if sw.calm_max_at[1] > 0 else '-'}"
+        out.append(Check(
+            "pulse step in calm air", ok, sw.calm_max_deg, dtm.max_step_deg, "deg",
+            f"one pulse turns the frame up to {sw.calm_max_deg:.3g} deg in calm air ({where}"
+            + (", into the travel end" if sw.calm_max_deg >= 2 * spec.site.travel_limit_deg - 1e-6
+               or sw.runs_to_end and not ok else "")
+            + f"); drive.max_step = {dtm.max_step_deg:g} deg" + ("" if ok else fix_text)))
     ok = tooth.stall_stress_MPa <= tooth.allowable_MPa
     out.append(Check(
         "teeth at motor stall", ok, tooth.stall_stress_MPa, tooth.allowable_MPa, "MPa",
@@ -435,12 +541,28 @@ def render_text(report: BalanceReport) -> str:
     row("motor torque available", f"{d.motor_torque_available_Nm:.4f}", "N·m")
     row("torque margin", f"{d.torque_margin:.2f}")
     row("axle speed under load", f"{d.output_speed_deg_h:.0f}", "deg/h")
-    row("sun", f"{tr.sun_rate_deg_h:.0f} (frame up to {tr.peak_rate_deg_h:.2f})", "deg/h")
-    if report.pulse is not None:
-        p = report.pulse
-        row("pulse energy", f"{p.energy_J:.4f}", "J")
-        row("axle angle per pulse", f"{p.angle_per_pulse_deg:.3g}", "deg")
-        row("pulses per hour (peak / mean)", f"{p.pulses_per_hour_peak:.3g} / {p.pulses_per_hour_mean:.3g}")
+    y = report.year
+    row("sun", f"{tr.sun_rate_deg_h:.0f} (frame up to {tr.peak_rate_deg_h:.2f} in June)", "deg/h")
+    row("peak tracking rate over the year", f"{y.peak_rate_deg_h:.1f}", "deg/h")
+    sd = y.shortest_day
+    row("tracked on the shortest day", f"{sd.tracked_h:.1f} of {sd.day_length_h:.1f} h ({sd.name})")
+    for dd in y.days:
+        row(f"  {dd.name}", f"day {dd.day_length_h:.1f} h, tracked {dd.tracked_h:.1f} h, "
+                            f"up to {dd.peak_rate_deg_h:.1f} deg/h")
+    dtm = report.drive_time
+    cd = dtm.continuous
+    row("steady drive: speed under worst load", f"{cd.steady_speed_deg_h:.4g}", "deg/h")
+    row("steady drive: time across the travel",
+        f"{cd.crossing_time_s:.3g}" if cd.crosses else "does not cross", "s" if cd.crosses else "")
+    sw = dtm.sweep
+    if sw is not None:
+        row("frame inertia about the axle", f"{dtm.frame_inertia_kgm2 * 1e6:.0f}", "kg·mm²")
+        row("angle per pulse, calm (largest)", f"{sw.calm_max_deg:.3g}", "deg")
+        row("angle per pulse, design wind (smallest)", f"{sw.wind_min_deg:.3g}", "deg")
+        for label, key in (("calm", "calm"), ("design wind", "wind")):
+            r, e = sw.at_rest[key], sw.at_ends[key]
+            row(f"  {label}: at rest +/-, from the ends",
+                f"{r[0]:.3g} / {r[1]:.3g}, {e[0]:.3g} / {e[1]:.3g}", "deg")
     t = report.tooth
     row(f"tooth stress ({t.weaker_gear})", f"{t.stress_MPa:.3f} of {t.allowable_MPa:.2f}", "MPa")
     cw = report.counterweight

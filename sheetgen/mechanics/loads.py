@@ -144,48 +144,10 @@ def drive_figures(load_torque_Nm: float, pinion_teeth: int, wheel_teeth: int, ef
 
 
 def capacitor_energy_J(capacitance_uF: float, voltage_V: float) -> float:
-    """E = C V^2 / 2."""
+    """E = C V^2 / 2. What one pulse does with it is worked out in time by
+    sheetgen.mechanics.pulse."""
     return 0.5 * capacitance_uF * 1e-6 * voltage_V ** 2
 
-
-@dataclass(frozen=True)
-class PulseFigures:
-    energy_J: float
-    threshold_voltage_V: float  # capacitor voltage below which the motor stalls on this load
-    motor_efficiency: float  # share of the stored energy that reaches the motor shaft
-    work_per_pulse_J: float  # at the axle, after the mesh
-    angle_per_pulse_deg: float
-    pulses_per_hour_peak: float  # at the frame's fastest tracking rate
-    pulses_per_hour_mean: float  # over the tracked part of the day
-    moves: bool
-
-
-def pulse_figures(capacitance_uF: float, voltage_V: float, load_torque_Nm: float,
-                  motor_torque_required_Nm: float, stall_torque_Nm: float, rated_voltage_V: float,
-                  mesh_efficiency: float, peak_rate_deg_h: float, mean_rate_deg_h: float) -> PulseFigures:
-    """A capacitor charged to V dumped into the motor, per pulse.
-
-    Model (ideal permanent-magnet DC motor at its output shaft: back-EMF k w,
-    winding resistance R, stall torque k V_rated / R; inductance, inertia and
-    gearbox drag neglected; our derivation): against a steady load torque T_m
-    the motor draws I = T_m / k and moves while the capacitor voltage exceeds
-    V_min = I R = V_rated T_m / T_stall. Out of the stored C V^2 / 2 the shaft
-    receives C (V - V_min)^2 / 2, the rest heats the winding, so the motor's
-    share is (1 - V_min / V)^2. The axle then turns by
-    work x mesh efficiency / axle load torque. Optimistic: real gear-motors
-    lose more in their own gearbox."""
-    energy = capacitor_energy_J(capacitance_uF, voltage_V)
-    v_min = rated_voltage_V * motor_torque_required_Nm / stall_torque_Nm
-    moves = voltage_V > v_min
-    share = (1.0 - v_min / voltage_V) ** 2 if moves else 0.0
-    work = energy * share * mesh_efficiency
-    if load_torque_Nm > 0:
-        angle = math.degrees(work / load_torque_Nm)
-    else:
-        angle = math.inf
-    per_h_peak = peak_rate_deg_h / angle if angle > 0 else math.inf
-    per_h_mean = mean_rate_deg_h / angle if angle > 0 else math.inf
-    return PulseFigures(energy, v_min, share, work, angle, per_h_peak, per_h_mean, moves)
 
 
 # ---------------------------------------------------------------------------
