@@ -41,6 +41,40 @@ class Interrupted(BaseException):
     ``BaseException`` so that no ``except Exception`` keeps the run going; the
     CLI turns it into exit code ``128 + signal``."""
 
-    def __init__(self, signum: int):
-        super().__init__(signum)
+    def __init__(self, signum: int, note: str = ""):
+        super().__init__(signum, note)
         self.signum = signum
+        self.note = note
+
+
+_received: list[int] = []
+
+
+def stop_on_signal(signum: int, frame=None) -> None:
+    """Signal handler for SIGINT and SIGTERM: remember the signal, then raise
+    (KeyboardInterrupt for SIGINT, :class:`Interrupted` otherwise)."""
+    _received.append(signum)
+    if signum == 2:
+        raise KeyboardInterrupt
+    raise Interrupted(signum)
+
+
+def interrupt_in_chain(exc: BaseException) -> int | None:
+    """The signal behind ``exc`` when an interrupt caused it: one in its chain, or
+    one received by :func:`stop_on_signal` (a C extension that fails to load
+    because Ctrl-C hit the import of its dependency raises a bare ImportError)."""
+    seen = set()
+    while exc is not None and id(exc) not in seen:
+        seen.add(id(exc))
+        if isinstance(exc, KeyboardInterrupt):
+            return 2
+        if isinstance(exc, Interrupted):
+            return exc.signum
+        exc = exc.__cause__ or exc.__context__
+    return _received[0] if _received else None
+
+
+def interrupt_line(signum: int, note: str = "") -> str:
+    """The one line printed when a run is stopped by a signal."""
+    what = "interrupted (Ctrl-C)" if signum == 2 else f"stopped by signal {signum}"
+    return f"sheetgen: {what}; " + (note or "nothing was written, any earlier output is as it was")
