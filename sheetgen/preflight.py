@@ -252,7 +252,9 @@ def check(geo: CutGeometry, sheet_mm: tuple[float, float] | None = None,
     faults += [Fault("branch", f"{deg} path ends meet here", *p) for p, deg in joined.branches]
 
     # every ring at once: drop repeated points, build, test validity and area in one go
-    cleaned = [_dedupe(np.asarray(pts, dtype=float)) for pts in joined.rings]
+    circle_of = {i: r for i, _x, _y, r in geo.circles}
+    cleaned = [pts[:-1] if src in circle_of else _dedupe(np.asarray(pts, dtype=float))
+               for pts, src in zip(joined.rings, joined.sources)]
     usable = [k for k, pts in enumerate(cleaned) if len(pts) >= 3]
     for k, pts in enumerate(cleaned):
         if len(pts) < 3 and len(pts):
@@ -294,7 +296,6 @@ def check(geo: CutGeometry, sheet_mm: tuple[float, float] | None = None,
         faults += _overlap_faults(polys, rings)
         faults += _lead_in_faults(geo, polys, rings, sources)
     if kerf_mm is not None and rings:
-        circle_of = {i: r for i, _x, _y, r in geo.circles}
         radii = [circle_of.get(src) for src in sources]
         faults += _narrow_faults(polys, rings, kerf_mm, radii)
     elif kerf_mm is None:

@@ -217,14 +217,26 @@ def choose_layers(on_layer: dict[str, int], layer: str | None, path: Path) -> tu
     return tuple(sorted(on_layer))
 
 
-def _circle_points(cx: float, cy: float, r: float) -> np.ndarray:
-    if r <= FLATTEN_TOL_MM:
-        n = 8
-    else:
-        n = math.ceil(math.pi / math.acos(max(-1.0, 1.0 - FLATTEN_TOL_MM / r)))
-    n = int(min(max(n, 8), MAX_CIRCLE_POINTS))
-    t = np.linspace(0.0, 2.0 * math.pi, n + 1)
-    return np.column_stack([cx + r * np.cos(t), cy + r * np.sin(t)])
+def _circle_points(circles: list[tuple[int, float, float, float]]) -> dict[int, np.ndarray]:
+    """Flattened circles, all at once: per entity index an (n + 1, 2) closed
+    polyline whose chords stay within FLATTEN_TOL_MM of the circle."""
+    if not circles:
+        return {}
+    a = np.asarray(circles, dtype=float)
+    r = a[:, 3]
+    n = np.full(len(a), 8, dtype=np.int64)
+    big = r > FLATTEN_TOL_MM
+    n[big] = np.ceil(np.pi / np.arccos(np.maximum(-1.0, 1.0 - FLATTEN_TOL_MM / r[big]))).astype(np.int64)
+    n = np.clip(n, 8, MAX_CIRCLE_POINTS)
+    out: dict[int, np.ndarray] = {}
+    for count in np.unique(n).tolist():
+        rows = np.nonzero(n == count)[0]
+        t = np.linspace(0.0, 2.0 * math.pi, count + 1)
+        unit = np.stack([np.cos(t), np.sin(t)], axis=1)  # (count + 1, 2)
+        pts = a[rows, None, 1:3] + a[rows, None, 3:4] * unit[None]
+        for k, row in enumerate(rows.tolist()):
+            out[int(a[row, 0])] = pts[k]
+    return out
 
 
 def _is_flat_extrusion(e) -> bool:
@@ -285,7 +297,7 @@ def read_cut_file(path: str | Path, layer: str | None = None) -> CutGeometry:
             if kind == "CIRCLE":
                 c = e.dxf.center if _is_flat_extrusion(e) else e.ocs().to_wcs(e.dxf.center)
                 cx, cy, r = float(c[0]) * factor, float(c[1]) * factor, float(e.dxf.radius) * factor
-                add(_circle_points(cx, cy, r), True, name)
+                add(no_lead, True, name)  # its points are made below, for all circles at once
                 circles.append((index, cx, cy, r))
                 continue
             if kind == "LINE":
@@ -325,6 +337,8 @@ def read_cut_file(path: str | Path, layer: str | None = None) -> CutGeometry:
         if not len(flat):
             flat = np.array([(p.start.x, p.start.y)], dtype=float)
         _add_flat(add, flat * factor, name)
+    for index, pts in _circle_points(circles).items():
+        paths[index] = pts
     for kind, count in sorted(skipped.items()):
         notes.append(f"{count} {kind} entit{'y' if count == 1 else 'ies'} on the checked layers skipped "
                      f"(not a cut path)")
