@@ -113,14 +113,20 @@ class _Group(click.Group):
             where = f"{exc.filename}: " if exc.filename else ""
             click.echo(f"error: {where}{os_reason(exc)}", err=True)
             ctx.exit(2)
-        except Exception as exc:
-            signum = interrupt_in_chain(exc)
-            if signum is None:
-                raise
-            raise Interrupted(signum) from None  # e.g. numpy turns Ctrl-C during its import into ImportError
         except GeometryBug as exc:
             click.echo(f"internal error: {exc} (a bug in sheetgen {__version__}; nothing was written)", err=True)
             ctx.exit(3)
+        except Exception as exc:
+            signum = interrupt_in_chain(exc)
+            if signum is not None:  # e.g. numpy turns Ctrl-C during its import into ImportError
+                raise Interrupted(signum) from None
+            if isinstance(exc, (ValueError, ArithmeticError)):
+                # user errors are SheetgenError (exit 2); a bare ValueError here is an
+                # invariant of ours that failed: one line, exit 3, as for GeometryBug
+                click.echo(f"internal error: {exc.__class__.__name__}: {exc} (a bug in sheetgen {__version__}; "
+                           f"nothing was written)", err=True)
+                ctx.exit(3)
+            raise
 
 
 @click.group(cls=_Group, context_settings={"help_option_names": ["-h", "--help"]})

@@ -406,3 +406,78 @@ def test_interrupt_at_many_moments_never_leaves_half_an_output(tmp_path):
             assert (out / MARKER).is_file() and (out / "manifest.json").is_file()
             assert set(read_marker(out)) == set(snapshot(out)) - {MARKER}
         assert not staging_left(tmp_path)
+
+
+# ---------------------------------------------------------------------------
+# error types: user errors are not ValueError; no bare ValueError reaches the user as a traceback
+
+
+def test_user_errors_are_not_value_errors():
+    from sheetgen.errors import GeometryBug, InputFileError, ParameterError, SheetgenError
+
+    for cls in (SheetgenError, ParameterError, InputFileError, OutputPathError):
+        assert not issubclass(cls, ValueError), cls
+    assert not issubclass(GeometryBug, (ValueError, SheetgenError))
+
+
+def test_core_geometry_raises_typed_errors():
+    from shapely.geometry import box
+
+    from sheetgen.errors import GeometryBug, ParameterError
+    from sheetgen.geometry.joints import TabMissesSlot, fit_clearance_mm, slot_footprint
+    from sheetgen.geometry.kerf import cut_outline
+    from sheetgen.part import Placement
+
+    with pytest.raises(ParameterError, match="fit 'loose'"):
+        fit_clearance_mm("loose")
+    with pytest.raises(ParameterError, match="kerf"):
+        cut_outline(box(0, 0, 10, 10), -0.1)
+    # two parts side by side, never crossing: the tab misses the slot part (an internal signal)
+    eye = ((1.0, 0.0, 0.0), (0.0, 1.0, 0.0), (0.0, 0.0, 1.0))
+    apart = Placement(eye, (0.0, 0.0, 0.0))
+    far = Placement(eye, (0.0, 0.0, 500.0))  # the slot part lies 500 mm above the tab
+    with pytest.raises(TabMissesSlot):
+        slot_footprint(box(0, 0, 5, 3), 3.0, apart, far, 3.0)
+    assert issubclass(TabMissesSlot, GeometryBug)
+
+
+def test_a_stray_value_error_is_one_line_and_exit_3(tmp_path, monkeypatch):
+    import sheetgen.kit as kit
+
+    def broken(spec):
+        raise ValueError("an invariant of ours failed")
+
+    monkeypatch.setattr(kit, "build_kit", broken)
+    res = run("parts", DEMO, "-o", tmp_path / "o")
+    assert res.exit_code == 3, res.output
+    assert "Traceback" not in res.output and "internal error: ValueError" in res.output
+    assert not (tmp_path / "o").exists() and not staging_left(tmp_path)
+
+
+# ---------------------------------------------------------------------------
+# a fresh clone: the README's test command collects with nothing beside the repository
+
+
+def test_the_suite_collects_in_a_fresh_copy_with_nothing_beside_it(tmp_path):
+    import shutil as sh
+
+    listed = subprocess.run(["git", "ls-files", "-z"], cwd=ROOT, capture_output=True, check=False)
+    if listed.returncode != 0:
+        pytest.skip("git is not installed or this is not a git checkout (git ls-files lists the repository)")
+    copy = tmp_path / "alone" / "sheetgen-clone"
+    for rel in listed.stdout.decode().split("\0"):
+        if rel and (ROOT / rel).is_file():
+            (copy / rel).parent.mkdir(parents=True, exist_ok=True)
+            sh.copy2(ROOT / rel, copy / rel)
+    assert not (copy.parent / "shared").exists()
+    env = dict(os.environ, PYTHONPATH=str(copy))
+    res = subprocess.run([sys.executable, "-m", "pytest", "--collect-only", "-q", "-p", "no:cacheprovider"],
+                         cwd=copy, env=env, capture_output=True, text=True, timeout=600)
+    assert res.returncode == 0, res.stdout[-3000:] + res.stderr[-3000:]
+    assert "tests collected" in res.stdout or "test collected" in res.stdout, res.stdout[-2000:]
+    # and no test reaches outside the repository for its data
+    for path in sorted((copy / "tests").glob("*.py")):
+        if path.name == Path(__file__).name:
+            continue  # this file names the folder only to check it is absent
+        text = path.read_text(encoding="utf-8")
+        assert '"shared"' not in text and "../shared" not in text, path.name
