@@ -201,23 +201,26 @@ def _duplicate_faults(geo: CutGeometry) -> list[Fault]:
         geoms = shapely.linestrings([s.points for s in lines])
         tree = shapely.STRtree(geoms)
         left, right = tree.query(geoms, predicate="dwithin", distance=DUP_TOL_MM)
-        for i, j in zip(left.tolist(), right.tolist()):
-            if i >= j:
-                continue
-            p0, p1 = np.asarray(lines[i].points)
-            q0, q1 = np.asarray(lines[j].points)
-            d = p1 - p0
-            length = float(np.hypot(*d))
-            u = d / length
-            normal = np.array([-u[1], u[0]])
-            if abs(np.dot(q0 - p0, normal)) > DUP_TOL_MM or abs(np.dot(q1 - p0, normal)) > DUP_TOL_MM:
-                continue
-            t = sorted((float(np.dot(q0 - p0, u)), float(np.dot(q1 - p0, u))))
-            lo, hi = max(0.0, t[0]), min(length, t[1])
-            if hi - lo > DUP_TOL_MM:
-                mid = p0 + u * (lo + hi) / 2
-                report(lines[i].entity, lines[j].entity, (float(mid[0]), float(mid[1])),
-                       f"segment ({hi - lo:.3f} mm)")
+        keep = left < right
+        left, right = left[keep], right[keep]
+        seg = np.array([s.points for s in lines], dtype=float)  # (n, 2, 2)
+        p0, p1 = seg[left, 0], seg[left, 1]
+        q0, q1 = seg[right, 0], seg[right, 1]
+        d = p1 - p0
+        length = np.hypot(d[:, 0], d[:, 1])
+        u = d / length[:, None]
+        normal = np.stack([-u[:, 1], u[:, 0]], axis=1)
+        off0 = np.abs(np.sum((q0 - p0) * normal, axis=1))
+        off1 = np.abs(np.sum((q1 - p0) * normal, axis=1))
+        t0 = np.sum((q0 - p0) * u, axis=1)
+        t1 = np.sum((q1 - p0) * u, axis=1)
+        lo = np.maximum(0.0, np.minimum(t0, t1))
+        hi = np.minimum(length, np.maximum(t0, t1))
+        on = (off0 <= DUP_TOL_MM) & (off1 <= DUP_TOL_MM) & (hi - lo > DUP_TOL_MM)
+        for k in np.nonzero(on)[0].tolist():
+            mid = p0[k] + u[k] * (lo[k] + hi[k]) / 2
+            report(lines[left[k]].entity, lines[right[k]].entity, (float(mid[0]), float(mid[1])),
+                   f"segment ({hi[k] - lo[k]:.3f} mm)")
     return faults
 
 
@@ -428,7 +431,7 @@ def _narrow_faults(polys, rings, kerf_mm: float, radii=None) -> list[Fault]:
     radii = radii or [None] * len(polys)
     material_msg = f"material narrower than 2 x kerf = {limit:.3f} mm"
     waste_msg = f"gap narrower than the kerf ({kerf_mm:.3f} mm): the beam cannot cut it as drawn"
-    regions, radius, message = [], [], []
+    general, sides = [], []
     for poly, d, r in zip(polys, depth, radii):
         inside_is_material = d % 2 == 0
         if r is not None:
@@ -438,14 +441,20 @@ def _narrow_faults(polys, rings, kerf_mm: float, radii=None) -> list[Fault]:
                 c = poly.centroid
                 faults.append(Fault("narrow", material_msg if inside_is_material else waste_msg, c.x, c.y))
             continue
-        inside = shapely.polygons(shapely.get_exterior_ring(poly))  # the contour's own region
-        outside = shapely.difference(shapely.buffer(shapely.envelope(inside), 4 * limit, join_style="mitre"), inside)
-        for region, is_material in ((inside, inside_is_material), (outside, not inside_is_material)):
-            regions.append(region)
-            radius.append(kerf_mm if is_material else kerf_mm / 2)
-            message.append(material_msg if is_material else waste_msg)
-    if regions:
-        for k, where in _thin_parts_all(np.asarray(regions, dtype=object), np.asarray(radius)):
+        general.append(poly)
+        sides.append(inside_is_material)
+    regions, radius, message = [], [], []
+    if general:
+        inside = shapely.polygons(shapely.get_exterior_ring(np.asarray(general, dtype=object)))
+        frame = shapely.buffer(shapely.envelope(inside), 4 * limit, join_style="mitre")
+        outside = shapely.difference(frame, inside)
+        material = np.asarray(sides)
+        regions = np.concatenate([inside, outside])
+        is_mat = np.concatenate([material, ~material])
+        radius = np.where(is_mat, kerf_mm, kerf_mm / 2)
+        message = [material_msg if m else waste_msg for m in is_mat.tolist()]
+    if len(regions):
+        for k, where in _thin_parts_all(regions, radius):
             faults.append(Fault("narrow", message[k], *where))
     return faults
 

@@ -35,7 +35,7 @@ def write_file(path: Path, count: int, kind: str) -> int:
         i, j = k % side, k // side
         x, y = 5 + 6.0 * i, 5 + 6.0 * j
         k += 1
-        if kind == "circles" or k % 3 == 0:
+        if kind == "circles" or k % 3 == 0 or count - made < 4:
             msp.add_circle((x, y), 2.0, dxfattribs={"layer": "CUT"})
             made += 1
         elif k % 3 == 1:
