@@ -423,3 +423,13 @@ def test_more_entities_than_the_ceiling_is_refused(tmp_path, monkeypatch):
     assert res.exit_code == 2 and "more than 10 entities" in res.output, res.output
     monkeypatch.setattr(dxf_read, "MAX_ENTITIES", 12)
     assert _cli(path).exit_code == 0
+
+
+def test_the_documented_ceiling_is_the_one_enforced():
+    from pathlib import Path
+
+    from sheetgen.io.dxf_read import MAX_ENTITIES
+
+    shown = f"{MAX_ENTITIES:,}"
+    assert shown in command.help
+    assert shown in (Path(__file__).resolve().parents[1] / "README.md").read_text(encoding="utf-8")

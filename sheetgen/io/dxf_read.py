@@ -48,7 +48,7 @@ JOIN_TOL_MM = 0.01      # path ends closer than this are one point (our choice, 
 FLATTEN_TOL_MM = 0.005  # chord error when curves are turned into polylines
 ZERO_TOL_MM = 1e-4      # shorter than this is no length
 CUT_LAYER = "CUT"
-MAX_ENTITIES = 500_000            # entities in model space, blocks exploded
+MAX_ENTITIES = 250_000            # entities in model space, blocks exploded (about 1.6 GB, a minute)
 MAX_FILE_BYTES = 200 * 1024 ** 2  # 200 MiB
 MAX_CIRCLE_POINTS = 2048
 
