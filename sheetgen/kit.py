@@ -18,7 +18,7 @@ from shapely.geometry import Polygon
 from shapely.ops import polylabel, unary_union
 
 from sheetgen.errors import GeometryBug, ParameterError
-from sheetgen.geometry.joints import fit_slot, slot_footprint, tab_layout, tab_rects
+from sheetgen.geometry.joints import TabMissesSlot, fit_slot, slot_footprint, tab_layout, tab_rects
 from sheetgen.geometry.kerf import cut_outline
 from sheetgen.geometry.shapes import clean
 from sheetgen.geometry.sweep import kit_silhouettes, sweep_clearance
@@ -99,7 +99,7 @@ def _joints(spec, blanks: dict[str, Blank]):
                 for k, sp in enumerate(sb.placements):
                     try:
                         fp = slot_footprint(r, t, tp, sp, t)
-                    except ValueError:
+                    except TabMissesSlot:
                         continue
                     if not sb.outline.contains(fp):
                         raise GeometryBug(f"joint {tab_name}.{edge_name} -> {slot_name}: slot at "

@@ -20,6 +20,11 @@ Reads any DXF (R12 to current) and names every fault with its position in mm:
                   bridges, sharp spikes); a gap narrower than the kerf itself
                   within a contour (a slot or notch the beam cannot cut as drawn).
 ``no-units``      the file does not say its units ($INSUNITS absent or unitless).
+``nothing-to-cut`` no closed contour on the checked layers (a file of text only,
+                  or only open paths): nothing would be cut.
+``encoding``      the file starts with a byte-order mark or is UTF-16: DXF is
+                  8-bit text and some laser software rejects such a file (it is
+                  still read and checked).
 
 The narrow rule. Cut contours are the beam's centre line. Rule of thumb (common
 practice): keep every web of material and every strip between two cuts at
@@ -43,32 +48,47 @@ other units are converted to mm and the positions are given in mm.
 
 Layers. With ``layer`` given only that layer is checked; otherwise the layer
 ``CUT`` when it has geometry, else every layer. Text and other non-path entities
-are not cut geometry and are skipped with a note.
+are not cut geometry and are skipped with a note; a file with no closed contour
+on the checked layers has nothing to cut, which is a fault.
 
-``read_cut_file`` does the reading (I/O); ``check`` is pure.
+Reading is the one DXF reader, :mod:`sheetgen.io.dxf_read` (the same reader
+``nest --extra`` uses: one join tolerance, one unit table, one cut-layer rule);
+``check`` is pure.
+
+Bounded work. The reader refuses files over ``MAX_FILE_BYTES`` or
+``MAX_ENTITIES`` entities (exit code 2). The checks are vectorised (shapely 2
+array functions over all contours at once, STRtree for pairs) so that 100,000
+entities are checked in seconds (tests/bench/bench_preflight.py measures it).
 """
 
 from __future__ import annotations
 
 import math
 import re
-from collections.abc import Sequence
 from dataclasses import dataclass
 from pathlib import Path
 
 import numpy as np
 
-from sheetgen.errors import InputFileError, ParameterError
+from sheetgen.errors import ParameterError
+from sheetgen.io.dxf_read import (  # noqa: F401 - re-exported: the one reader
+    CUT_LAYER,
+    FLATTEN_TOL_MM,
+    JOIN_TOL_MM,
+    MAX_ENTITIES,
+    MAX_FILE_BYTES,
+    PATH_TYPES,
+    ZERO_TOL_MM,
+    CutGeometry,
+    Segment,
+    closed_rings,
+    read_cut_file,
+)
 
-JOIN_TOL_MM = 0.01  # path ends closer than this are joined (our choice)
 DUP_TOL_MM = 0.001  # segments this close are the same segment
-ZERO_TOL_MM = 1e-4  # shorter than this is no length
-FLATTEN_MM = 0.005  # chord error when curves are turned into polylines
 SPIKE_ANGLE_DEG = 30.0
-CUT_LAYER = "CUT"
-PATH_TYPES = ("LINE", "ARC", "CIRCLE", "LWPOLYLINE", "POLYLINE", "ELLIPSE", "SPLINE")
-KINDS = ("no-units", "open-contour", "branch", "zero-length", "duplicate", "self-crossing", "overlap",
-         "off-sheet", "narrow")
+KINDS = ("encoding", "no-units", "nothing-to-cut", "open-contour", "branch", "zero-length", "duplicate",
+         "self-crossing", "overlap", "off-sheet", "narrow")
 
 
 @dataclass(frozen=True)
@@ -82,35 +102,6 @@ class Fault:
         where = "file header" if self.x_mm is None else f"({self.x_mm:.3f}, {self.y_mm:.3f})"
         return f"{self.kind} at {where}: {self.message}"
 
-
-@dataclass(frozen=True)
-class Segment:
-    """One drawing primitive, in mm: a straight segment ``("line", p, q)`` or a
-    Bezier curve ``("curve", p, c1, [c2,] q)`` as ezdxf's path gives arcs,
-    circles, ellipses and splines."""
-
-    kind: str
-    points: tuple[tuple[float, float], ...]
-    entity: int
-
-
-@dataclass(frozen=True)
-class CutGeometry:
-    """What a cut file holds, in mm: per path entity its flattened polyline and
-    its primitives. A path that runs in to a point and then round back to it is
-    a closed contour with a lead-in: ``paths`` holds the contour, ``leads`` the
-    lead-in."""
-
-    paths: tuple[tuple[tuple[float, float], ...], ...]  # flattened, one per entity
-    closed: tuple[bool, ...]
-    segments: tuple[Segment, ...]
-    entity_names: tuple[str, ...]  # e.g. "LWPOLYLINE #3"
-    zero_entities: tuple[tuple[int, tuple[float, float]], ...]  # entities of no size, with a point
-    units: str
-    unit_faults: tuple[Fault, ...]
-    notes: tuple[str, ...]
-    layers: tuple[str, ...]
-    leads: tuple[tuple[tuple[float, float], ...], ...] = ()  # per entity: its lead-in polyline, or ()
 
 
 @dataclass(frozen=True)
@@ -127,166 +118,42 @@ class PreflightReport:
 
 
 # ---------------------------------------------------------------------------
-# reading (I/O edge)
-
-
-def _units(doc) -> tuple[str, float, list[Fault], list[str]]:
-    from ezdxf import units
-
-    if doc.dxfversion <= "AC1009":
-        return "mm", 1.0, [], ["R12 file: the format has no units field; lengths are read as mm"]
-    if "$INSUNITS" not in doc.header:
-        return "mm", 1.0, [Fault("no-units", "$INSUNITS is missing: the file does not say its units; "
-                                             "lengths are read as mm")], []
-    code = doc.header.get("$INSUNITS", 0)
-    if code == 0:
-        return "mm", 1.0, [Fault("no-units", "$INSUNITS = 0 (unitless): the file does not say its units; "
-                                             "lengths are read as mm")], []
-    try:
-        factor = units.conversion_factor(code, units.MM)
-        name = units.unit_name(code)
-    except (TypeError, ValueError, KeyError, IndexError):
-        return "mm", 1.0, [Fault("no-units", f"$INSUNITS = {code} is no known unit; lengths are read as mm")], []
-    notes = [] if code == units.MM else [f"file units: {name}; positions are given in mm"]
-    return "mm" if code == units.MM else name, float(factor), [], notes
-
-
-def _flat_entities(entities, depth=0):
-    """Path entities, with blocks (INSERT) exploded."""
-    for e in entities:
-        if e.dxftype() == "INSERT" and depth < 8:
-            try:
-                yield from _flat_entities(e.virtual_entities(), depth + 1)
-            except Exception:  # a broken block reference: skipped, noted by the caller
-                yield e
-        else:
-            yield e
-
-
-def read_cut_file(path: str | Path, layer: str | None = None) -> CutGeometry:
-    """Read the cut geometry of a DXF file. Unreadable -> InputFileError."""
-    import ezdxf
-    from ezdxf import path as ezpath
-
-    path = Path(path)
-    if not path.is_file():
-        raise InputFileError(f"{path}: no such file")
-    try:
-        doc = ezdxf.readfile(str(path))
-    except (OSError, UnicodeError) as exc:
-        reason = getattr(exc, "strerror", None) or "not a DXF file"
-        raise InputFileError(f"{path}: cannot be read as a DXF file ({reason})") from None
-    except ezdxf.DXFError as exc:
-        raise InputFileError(f"{path}: not a readable DXF file ({exc})") from None
-    units_name, factor, unit_faults, notes = _units(doc)
-
-    entities = list(_flat_entities(doc.modelspace()))
-    on_layer: dict[str, int] = {}
-    for e in entities:
-        if e.dxftype() in PATH_TYPES:
-            name = e.dxf.get("layer", "0")
-            on_layer[name] = on_layer.get(name, 0) + 1
-    if layer is not None:
-        if not any(name.upper() == layer.upper() for name in on_layer):
-            have = ", ".join(sorted(on_layer)) or "none"
-            raise InputFileError(f"{path}: --layer {layer}: no cut geometry on that layer "
-                                 f"(layers with geometry: {have})")
-        layers = tuple(sorted(n for n in on_layer if n.upper() == layer.upper()))
-    elif any(n.upper() == CUT_LAYER for n in on_layer):
-        layers = tuple(sorted(n for n in on_layer if n.upper() == CUT_LAYER))
-    else:
-        layers = tuple(sorted(on_layer))
-    wanted = {n.upper() for n in layers}
-
-    paths, closed, leads, segments, names, zero = [], [], [], [], [], []
-    skipped: dict[str, int] = {}
-
-    def pt(v) -> tuple[float, float]:
-        return (float(v[0]) * factor, float(v[1]) * factor)
-
-    for e in entities:
-        kind = e.dxftype()
-        if e.dxf.get("layer", "0").upper() not in wanted:
-            continue
-        if kind not in PATH_TYPES:
-            skipped[kind] = skipped.get(kind, 0) + 1
-            continue
-        if kind == "POLYLINE" and not e.is_2d_polyline:
-            skipped["3D POLYLINE"] = skipped.get("3D POLYLINE", 0) + 1
-            continue
-        index = len(paths)
-        name = f"{kind} #{e.dxf.handle}" if e.dxf.hasattr("handle") else kind
-        if kind in ("CIRCLE", "ARC") and e.dxf.radius * factor < ZERO_TOL_MM:
-            c = e.ocs().to_wcs(e.dxf.center)
-            paths.append(())
-            closed.append(False)
-            leads.append(())
-            names.append(name)
-            zero.append((index, pt(c)))
-            continue
-        try:
-            p = ezpath.make_path(e)
-        except (TypeError, ValueError, ZeroDivisionError):
-            skipped[kind + " (unreadable)"] = skipped.get(kind + " (unreadable)", 0) + 1
-            continue
-        here = pt(p.start)
-        for cmd in p.commands():
-            if cmd.type == ezpath.Command.MOVE_TO:
-                here = pt(cmd.end)
-                continue
-            end = pt(cmd.end)
-            if cmd.type == ezpath.Command.LINE_TO:
-                segments.append(Segment("line", (here, end), index))
-            elif cmd.type == ezpath.Command.CURVE3_TO:
-                segments.append(Segment("curve", (here, pt(cmd.ctrl), end), index))
-            else:
-                segments.append(Segment("curve", (here, pt(cmd.ctrl1), pt(cmd.ctrl2), end), index))
-            here = end
-        flat = [pt(v) for v in p.flattening(FLATTEN_MM / factor)]
-        if not flat:
-            flat = [pt(p.start)]
-        is_closed = len(flat) > 2 and math.dist(flat[0], flat[-1]) <= JOIN_TOL_MM
-        lead: tuple = ()
-        if not is_closed and len(flat) > 3:
-            # a lead-in: the path runs in to a point and then round back to it
-            for k in range(1, len(flat) - 3):
-                if math.dist(flat[k], flat[-1]) <= JOIN_TOL_MM:
-                    lead, flat, is_closed = tuple(flat[:k + 1]), flat[k:], True
-                    break
-        paths.append(tuple(flat))
-        closed.append(is_closed)
-        leads.append(lead)
-        names.append(name)
-    for kind, count in sorted(skipped.items()):
-        notes.append(f"{count} {kind} entit{'y' if count == 1 else 'ies'} on the checked layers skipped "
-                     f"(not a cut path)")
-    return CutGeometry(tuple(paths), tuple(closed), tuple(segments), tuple(names), tuple(zero), units_name,
-                       tuple(unit_faults), tuple(notes), layers, tuple(leads))
 
 
 # ---------------------------------------------------------------------------
 # the checks (pure)
 
 
-def _dedupe(points: Sequence[tuple[float, float]]) -> list[tuple[float, float]]:
-    out: list[tuple[float, float]] = []
-    for p in points:
-        if not out or math.dist(out[-1], p) > ZERO_TOL_MM:
-            out.append(p)
-    if len(out) > 1 and math.dist(out[0], out[-1]) <= JOIN_TOL_MM:
-        out.pop()
-    return out
+def _unit_faults(geo: CutGeometry) -> tuple[list[Fault], list[str]]:
+    if geo.units_state == "r12":
+        return [], ["R12 file: the format has no units field; lengths are read as mm"]
+    if geo.units_state == "missing":
+        return [Fault("no-units", "$INSUNITS is missing: the file does not say its units; lengths are read as mm")], []
+    if geo.units_state == "unitless":
+        return [Fault("no-units", "$INSUNITS = 0 (unitless): the file does not say its units; "
+                                  "lengths are read as mm")], []
+    if geo.units_state == "unknown":
+        return [Fault("no-units", f"$INSUNITS = {geo.units_code} is no known unit; lengths are read as mm")], []
+    return [], ([] if geo.units == "mm" else [f"file units: {geo.units}; positions are given in mm"])
 
 
 def _zero_length_faults(geo: CutGeometry) -> list[Fault]:
     faults = []
     for index, p in geo.zero_entities:
         faults.append(Fault("zero-length", f"{geo.entity_names[index]} has radius 0", *p))
+    lines = [s for s in geo.segments if s.kind == "line"]
+    if lines:
+        a = np.array([s.points for s in lines], dtype=float)  # (n, 2, 2)
+        short = np.hypot(*(a[:, 1] - a[:, 0]).T) < ZERO_TOL_MM
+        for k in np.nonzero(short)[0].tolist():
+            s = lines[k]
+            faults.append(Fault("zero-length", f"segment of length 0 in {geo.entity_names[s.entity]}", *s.points[0]))
     for s in geo.segments:
+        if s.kind == "line":
+            continue
         pts = np.asarray(s.points)
         if np.max(np.hypot(*(pts - pts[0]).T)) < ZERO_TOL_MM:
-            what = "segment" if s.kind == "line" else "curve"
-            faults.append(Fault("zero-length", f"{what} of length 0 in {geo.entity_names[s.entity]}", *s.points[0]))
+            faults.append(Fault("zero-length", f"curve of length 0 in {geo.entity_names[s.entity]}", *s.points[0]))
     return faults
 
 
@@ -307,7 +174,15 @@ def _duplicate_faults(geo: CutGeometry) -> list[Fault]:
             msg = f"{what} drawn twice: {geo.entity_names[key[0]]} and {geo.entity_names[key[1]]}"
         faults.append(Fault("duplicate", msg, *where))
 
-    # curves (arcs, circles, splines): the same control points, either direction
+    # circles: the same centre and radius
+    seen_circles: dict[tuple[int, int, int], int] = {}
+    for index, cx, cy, r in geo.circles:
+        key = (round(cx / DUP_TOL_MM), round(cy / DUP_TOL_MM), round(r / DUP_TOL_MM))
+        if key in seen_circles:
+            report(seen_circles[key], index, (cx + r, cy), "circle")
+        else:
+            seen_circles[key] = index
+    # curves (arcs, ellipses, splines): the same control points, either direction
     curves: dict[tuple, int] = {}
     for s in geo.segments:
         if s.kind != "curve":
@@ -326,158 +201,106 @@ def _duplicate_faults(geo: CutGeometry) -> list[Fault]:
         geoms = shapely.linestrings([s.points for s in lines])
         tree = shapely.STRtree(geoms)
         left, right = tree.query(geoms, predicate="dwithin", distance=DUP_TOL_MM)
-        for i, j in zip(left.tolist(), right.tolist()):
-            if i >= j:
-                continue
-            p0, p1 = np.asarray(lines[i].points)
-            q0, q1 = np.asarray(lines[j].points)
-            d = p1 - p0
-            length = float(np.hypot(*d))
-            u = d / length
-            normal = np.array([-u[1], u[0]])
-            if abs(np.dot(q0 - p0, normal)) > DUP_TOL_MM or abs(np.dot(q1 - p0, normal)) > DUP_TOL_MM:
-                continue
-            t = sorted((float(np.dot(q0 - p0, u)), float(np.dot(q1 - p0, u))))
-            lo, hi = max(0.0, t[0]), min(length, t[1])
-            if hi - lo > DUP_TOL_MM:
-                mid = p0 + u * (lo + hi) / 2
-                report(lines[i].entity, lines[j].entity, (float(mid[0]), float(mid[1])),
-                       f"segment ({hi - lo:.3f} mm)")
+        keep = left < right
+        left, right = left[keep], right[keep]
+        seg = np.array([s.points for s in lines], dtype=float)  # (n, 2, 2)
+        p0, p1 = seg[left, 0], seg[left, 1]
+        q0, q1 = seg[right, 0], seg[right, 1]
+        d = p1 - p0
+        length = np.hypot(d[:, 0], d[:, 1])
+        u = d / length[:, None]
+        normal = np.stack([-u[:, 1], u[:, 0]], axis=1)
+        off0 = np.abs(np.sum((q0 - p0) * normal, axis=1))
+        off1 = np.abs(np.sum((q1 - p0) * normal, axis=1))
+        t0 = np.sum((q0 - p0) * u, axis=1)
+        t1 = np.sum((q1 - p0) * u, axis=1)
+        lo = np.maximum(0.0, np.minimum(t0, t1))
+        hi = np.minimum(length, np.maximum(t0, t1))
+        on = (off0 <= DUP_TOL_MM) & (off1 <= DUP_TOL_MM) & (hi - lo > DUP_TOL_MM)
+        for k in np.nonzero(on)[0].tolist():
+            mid = p0[k] + u[k] * (lo[k] + hi[k]) / 2
+            report(lines[left[k]].entity, lines[right[k]].entity, (float(mid[0]), float(mid[1])),
+                   f"segment ({hi[k] - lo[k]:.3f} mm)")
     return faults
 
 
-def _node_key(p, cell):
-    return (math.floor(p[0] / cell), math.floor(p[1] / cell))
-
-
-def _chains(geo: CutGeometry) -> tuple[list[list[tuple[float, float]]], list[int], list[Fault]]:
-    """Closed rings from closed entities and from open paths joined end to end,
-    with the entity each came from (-1 when joined from several); faults for
-    loose ends and branches."""
-    rings = [list(p) for p, c in zip(geo.paths, geo.closed) if c]
-    sources = [i for i, c in enumerate(geo.closed) if c]
-    open_ids = [i for i, (p, c) in enumerate(zip(geo.paths, geo.closed))
-                if not c and len(p) >= 2 and sum(math.dist(p[k], p[k + 1]) for k in range(len(p) - 1)) >= ZERO_TOL_MM]
-    if not open_ids:
-        return rings, sources, []
-    # cluster path ends within JOIN_TOL_MM (union-find over a grid)
-    ends = []
-    for i in open_ids:
-        ends.append(geo.paths[i][0])
-        ends.append(geo.paths[i][-1])
-    parent = list(range(len(ends)))
-
-    def find(a):
-        while parent[a] != a:
-            parent[a] = parent[parent[a]]
-            a = parent[a]
-        return a
-
-    grid: dict[tuple[int, int], list[int]] = {}
-    for k, p in enumerate(ends):
-        gx, gy = _node_key(p, JOIN_TOL_MM)
-        for dx in (-1, 0, 1):
-            for dy in (-1, 0, 1):
-                for other in grid.get((gx + dx, gy + dy), ()):
-                    if math.dist(ends[other], p) <= JOIN_TOL_MM:
-                        ra, rb = find(k), find(other)
-                        if ra != rb:
-                            parent[max(ra, rb)] = min(ra, rb)
-        grid.setdefault((gx, gy), []).append(k)
-    node = [find(k) for k in range(len(ends))]
-    degree: dict[int, int] = {}
-    for n_ in node:
-        degree[n_] = degree.get(n_, 0) + 1
-    faults = []
-    for n_, deg in sorted(degree.items()):
-        if deg == 1:
-            faults.append(Fault("open-contour", "loose end: the path does not close", *ends[n_]))
-        elif deg > 2:
-            faults.append(Fault("branch", f"{deg} path ends meet here", *ends[n_]))
-    # walk the components whose nodes all have degree 2: closed chains
-    edges_at: dict[int, list[int]] = {}
-    for e_, i in enumerate(open_ids):
-        edges_at.setdefault(node[2 * e_], []).append(e_)
-        edges_at.setdefault(node[2 * e_ + 1], []).append(e_)
-    used = [False] * len(open_ids)
-    for e0 in range(len(open_ids)):
-        if used[e0]:
-            continue
-        # collect the component
-        comp, stack = [], [e0]
-        used[e0] = True
-        while stack:
-            e_ = stack.pop()
-            comp.append(e_)
-            for nd in (node[2 * e_], node[2 * e_ + 1]):
-                for f_ in edges_at[nd]:
-                    if not used[f_]:
-                        used[f_] = True
-                        stack.append(f_)
-        nodes = {node[2 * e_] for e_ in comp} | {node[2 * e_ + 1] for e_ in comp}
-        if any(degree[nd] != 2 for nd in nodes):
-            continue
-        ring: list[tuple[float, float]] = []
-        e_, at = comp[0], node[2 * comp[0]]
-        seen = set()
-        while e_ not in seen:
-            seen.add(e_)
-            pts = list(geo.paths[open_ids[e_]])
-            if node[2 * e_] != at:
-                pts.reverse()
-            ring.extend(pts)
-            at = node[2 * e_ + 1] if node[2 * e_] == at else node[2 * e_]
-            nxt = [f_ for f_ in edges_at[at] if f_ not in seen]
-            if not nxt:
-                break
-            e_ = nxt[0]
-        rings.append(ring)
-        sources.append(-1)
-    return rings, sources, faults
-
 
 _LOCATION = re.compile(r"\[\s*([-+0-9.eE]+)\s+([-+0-9.eE]+)")
+
+
+def _dedupe(pts: np.ndarray) -> np.ndarray:
+    """Consecutive points closer than ZERO_TOL_MM merged; the closing point dropped."""
+    if len(pts) < 2:
+        return pts
+    keep = np.concatenate([[True], np.hypot(*np.diff(pts, axis=0).T) > ZERO_TOL_MM])
+    pts = pts[keep]
+    if len(pts) > 1 and math.dist(pts[0], pts[-1]) <= JOIN_TOL_MM:
+        pts = pts[:-1]
+    return pts
 
 
 def check(geo: CutGeometry, sheet_mm: tuple[float, float] | None = None,
           kerf_mm: float | None = None) -> PreflightReport:
     """All the checks on read geometry. Faults are sorted by kind, then position."""
     import shapely
-    from shapely.geometry import LinearRing, Polygon
 
-    faults: list[Fault] = list(geo.unit_faults)
-    notes = list(geo.notes)
+    faults: list[Fault] = [Fault("encoding", issue) for issue in geo.encoding_issues]
+    unit_faults, unit_notes = _unit_faults(geo)
+    faults += unit_faults
+    notes = list(unit_notes) + list(geo.notes)
     faults += _zero_length_faults(geo)
     faults += _duplicate_faults(geo)
-    raw_rings, raw_sources, chain_faults = _chains(geo)
-    faults += chain_faults
+    joined = closed_rings(geo)
+    faults += [Fault("open-contour", "loose end: the path does not close", *p) for p in joined.loose_ends]
+    faults += [Fault("branch", f"{deg} path ends meet here", *p) for p, deg in joined.branches]
 
-    polys, rings, sources = [], [], []
-    for pts, source in zip(raw_rings, raw_sources):
-        pts = _dedupe(pts)
-        poly = Polygon(pts) if len(pts) >= 3 else None
-        if poly is not None and not poly.is_valid and shapely.length(poly) > ZERO_TOL_MM:
+    # every ring at once: drop repeated points, build, test validity and area in one go
+    circle_of = {i: r for i, _x, _y, r in geo.circles}
+    cleaned = [pts[:-1] if src in circle_of else _dedupe(np.asarray(pts, dtype=float))
+               for pts, src in zip(joined.rings, joined.sources)]
+    usable = [k for k, pts in enumerate(cleaned) if len(pts) >= 3]
+    for k, pts in enumerate(cleaned):
+        if len(pts) < 3 and len(pts):
+            faults.append(Fault("zero-length", "closed contour of no area", *pts[0]))
+    if usable:
+        counts = np.array([len(cleaned[k]) for k in usable])
+        coords = np.concatenate([cleaned[k] for k in usable])
+        all_rings = shapely.linearrings(coords, indices=np.repeat(np.arange(len(usable)), counts))
+        all_polys = shapely.polygons(all_rings)
+        valid = shapely.is_valid(all_polys)
+        areas = shapely.area(all_polys)
+    else:
+        all_rings = all_polys = np.zeros(0, dtype=object)
+        valid = areas = np.zeros(0)
+    keep: list[int] = []
+    for pos, k in enumerate(usable):
+        pts, poly = cleaned[k], all_polys[pos]
+        if not valid[pos] and shapely.length(poly) > ZERO_TOL_MM:
             reason = shapely.is_valid_reason(poly)
             m = _LOCATION.search(reason)
-            where = (float(m.group(1)), float(m.group(2))) if m else pts[0]
-            if not (poly.area < ZERO_TOL_MM ** 2 and _is_flat(pts)):
+            where = (float(m.group(1)), float(m.group(2))) if m else tuple(pts[0])
+            if not (areas[pos] < ZERO_TOL_MM ** 2 and _is_flat(pts)):
                 faults.append(Fault("self-crossing", f"closed contour crosses or touches itself "
                                                      f"({reason.split('[')[0]})", *where))
                 continue
-        if poly is None or poly.area < ZERO_TOL_MM ** 2:
-            if pts:
-                faults.append(Fault("zero-length", "closed contour of no area", *pts[0]))
+        if areas[pos] < ZERO_TOL_MM ** 2:
+            faults.append(Fault("zero-length", "closed contour of no area", *pts[0]))
             continue
-        polys.append(poly)
-        rings.append(LinearRing(pts))
-        sources.append(source)
+        keep.append(pos)
+    polys = list(all_polys[keep])
+    rings = list(all_rings[keep])
+    sources = [joined.sources[usable[pos]] for pos in keep]
+    if not rings and not any(f.kind == "self-crossing" for f in faults):
+        where = f"layer {', '.join(geo.layers)}" if geo.layers else "any layer"
+        faults.append(Fault("nothing-to-cut", f"no closed contour on {where}: the file has nothing to cut"))
     if sheet_mm is not None:
         faults += _off_sheet_faults(geo, sheet_mm)
     if rings:
         faults += _overlap_faults(polys, rings)
         faults += _lead_in_faults(geo, polys, rings, sources)
     if kerf_mm is not None and rings:
-        faults += _narrow_faults(polys, rings, kerf_mm)
+        radii = [circle_of.get(src) for src in sources]
+        faults += _narrow_faults(polys, rings, kerf_mm, radii)
     elif kerf_mm is None:
         notes.append("no --kerf: narrow features not checked")
 
@@ -496,17 +319,22 @@ def _is_flat(pts) -> bool:
 
 def _off_sheet_faults(geo: CutGeometry, sheet_mm) -> list[Fault]:
     w, h = sheet_mm
-    faults = []
     tol = 1e-6
-    for i, p in enumerate(geo.paths):
-        if not p:
-            continue
-        a = np.asarray(p + (geo.leads[i] if i < len(geo.leads) else ()))
-        over = np.maximum.reduce([-a[:, 0], a[:, 0] - w, -a[:, 1], a[:, 1] - h])
-        k = int(np.argmax(over))
-        if over[k] > tol:
-            faults.append(Fault("off-sheet", f"{geo.entity_names[i]} reaches {over[k]:.3f} mm past the sheet "
-                                             f"(0, 0)-({w:g}, {h:g})", float(a[k, 0]), float(a[k, 1])))
+    pieces = [(i, np.concatenate([p, geo.leads[i]]) if i < len(geo.leads) and len(geo.leads[i]) else p)
+              for i, p in enumerate(geo.paths) if len(p)]
+    if not pieces:
+        return []
+    a = np.concatenate([pts for _, pts in pieces])
+    starts = np.cumsum([0] + [len(pts) for _, pts in pieces[:-1]])
+    over = np.maximum.reduce([-a[:, 0], a[:, 0] - w, -a[:, 1], a[:, 1] - h])
+    worst = np.maximum.reduceat(over, starts)
+    faults = []
+    for n in np.nonzero(worst > tol)[0].tolist():
+        i, pts = pieces[n]
+        seg = over[starts[n]:starts[n] + len(pts)]
+        k = int(np.argmax(seg))
+        faults.append(Fault("off-sheet", f"{geo.entity_names[i]} reaches {seg[k]:.3f} mm past the sheet "
+                                         f"(0, 0)-({w:g}, {h:g})", float(pts[k, 0]), float(pts[k, 1])))
     return faults
 
 
@@ -530,6 +358,7 @@ def _lead_in_faults(geo: CutGeometry, polys, rings, sources) -> list[Fault]:
         if len(lead) < 2 or i not in own:
             continue
         line = LineString(lead)
+        lead = [tuple(p) for p in lead]
         name = geo.entity_names[i]
         j_own = own[i]
         if polys[j_own].contains(Point(lead[0])) == (depth[j_own] % 2 == 0):
@@ -573,14 +402,18 @@ def _overlap_faults(polys, rings) -> list[Fault]:
     return faults
 
 
-def _narrow_faults(polys, rings, kerf_mm: float) -> list[Fault]:
+
+def _narrow_faults(polys, rings, kerf_mm: float, radii=None) -> list[Fault]:
+    """Narrow features (module doc). ``radii``: per contour the radius when it is
+    a true circle (a disk's narrowest part is its diameter; outside a disk
+    nothing is narrow), else None."""
     import shapely
-    from shapely.geometry import Polygon
 
     limit = 2.0 * kerf_mm
     faults = []
-    tree = shapely.STRtree(rings)
-    left, right = tree.query(rings, predicate="dwithin", distance=limit)
+    ring_arr = np.asarray(rings, dtype=object)
+    tree = shapely.STRtree(ring_arr)
+    left, right = tree.query(ring_arr, predicate="dwithin", distance=limit)
     for i, j in zip(left.tolist(), right.tolist()):
         if i >= j:
             continue
@@ -595,29 +428,72 @@ def _narrow_faults(polys, rings, kerf_mm: float) -> list[Fault]:
     depth = [0] * len(polys)
     for _, inner in enclosure_pairs(polys):
         depth[inner] += 1
-    for poly, d in zip(polys, depth):
-        inside = Polygon(poly.exterior)  # the contour's own region; holes are contours too
-        outside = inside.envelope.buffer(4 * limit, join_style="mitre").difference(inside)
-        material, waste = (inside, outside) if d % 2 == 0 else (outside, inside)
-        for where in _thin_parts(material, kerf_mm):
-            faults.append(Fault("narrow", f"material narrower than 2 x kerf = {limit:.3f} mm", *where))
-        for where in _thin_parts(waste, kerf_mm / 2):
-            faults.append(Fault("narrow", f"gap narrower than the kerf ({kerf_mm:.3f} mm): the beam cannot cut it "
-                                          f"as drawn", *where))
+    radii = radii or [None] * len(polys)
+    material_msg = f"material narrower than 2 x kerf = {limit:.3f} mm"
+    waste_msg = f"gap narrower than the kerf ({kerf_mm:.3f} mm): the beam cannot cut it as drawn"
+    general, sides = [], []
+    for poly, d, r in zip(polys, depth, radii):
+        inside_is_material = d % 2 == 0
+        if r is not None:
+            # a true circle: inside, the narrowest width is the diameter; outside nothing is narrow
+            need = kerf_mm if inside_is_material else kerf_mm / 2
+            if r < need:
+                c = poly.centroid
+                faults.append(Fault("narrow", material_msg if inside_is_material else waste_msg, c.x, c.y))
+            continue
+        general.append(poly)
+        sides.append(inside_is_material)
+    regions, radius, message = [], [], []
+    if general:
+        inside = shapely.polygons(shapely.get_exterior_ring(np.asarray(general, dtype=object)))
+        frame = shapely.buffer(shapely.envelope(inside), 4 * limit, join_style="mitre")
+        outside = shapely.difference(frame, inside)
+        material = np.asarray(sides)
+        regions = np.concatenate([inside, outside])
+        is_mat = np.concatenate([material, ~material])
+        radius = np.where(is_mat, kerf_mm, kerf_mm / 2)
+        message = [material_msg if m else waste_msg for m in is_mat.tolist()]
+    if len(regions):
+        for k, where in _thin_parts_all(regions, radius):
+            faults.append(Fault("narrow", message[k], *where))
     return faults
 
 
-def _thin_parts(region, radius_mm: float) -> list[tuple[float, float]]:
+def _spike_depth(radius_mm):
+    return radius_mm * (1.0 / math.sin(math.radians(SPIKE_ANGLE_DEG / 2)) - 1.0)
+
+
+def _thin_parts_all(regions: np.ndarray, radii: np.ndarray) -> list[tuple[int, tuple[float, float]]]:
+    """``(region index, point)`` for the parts of each region narrower than 2 x its
+    radius. All regions are opened at once (shapely array functions); only those
+    the opening changes by more than a corner would (Hausdorff distance above the
+    spike depth, or split in pieces) get the detailed look of :func:`_thin_parts`."""
+    import shapely
+
+    opened = shapely.buffer(shapely.buffer(regions, -radii, quad_segs=16), radii, quad_segs=16)
+    reach = shapely.hausdorff_distance(regions, opened)
+    pieces = shapely.get_num_geometries(opened)
+    empty = shapely.is_empty(opened)
+    suspect = empty | (pieces > 1) | ~(reach <= _spike_depth(radii) * 1.01)
+    out = []
+    for k in np.nonzero(suspect)[0].tolist():
+        for where in _thin_parts(regions[k], float(radii[k]), opened[k]):
+            out.append((k, where))
+    return out
+
+
+def _thin_parts(region, radius_mm: float, opened=None) -> list[tuple[float, float]]:
     """Points inside the parts of ``region`` narrower than 2 x radius."""
     import shapely
 
-    opened = region.buffer(-radius_mm, quad_segs=16).buffer(radius_mm, quad_segs=16)
+    if opened is None:
+        opened = region.buffer(-radius_mm, quad_segs=16).buffer(radius_mm, quad_segs=16)
     lost = region.difference(opened)
     if lost.is_empty:
         return []
     pieces = [g for g in getattr(lost, "geoms", [lost]) if g.geom_type == "Polygon" and g.area > 1e-9]
     comps = [g for g in getattr(opened, "geoms", [opened]) if not g.is_empty]
-    spike = radius_mm * (1.0 / math.sin(math.radians(SPIKE_ANGLE_DEG / 2)) - 1.0)
+    spike = _spike_depth(radius_mm)
     out = []
     for piece in pieces:
         if opened.is_empty:

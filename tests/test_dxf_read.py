@@ -121,3 +121,127 @@ def test_blocks_are_exploded(tmp_path):
     doc.saveas(path)
     parts = read_dxf_parts(path)
     assert [p.polygon.bounds for p in parts] == [(0, 0, 5, 3), (10, 0, 15, 3)]
+
+
+# ---------------------------------------------------------------------------
+# one reader for preflight and nest --extra: the same files read the same way
+
+
+def _contour_count(parts):
+    return sum(1 + len(p.polygon.interiors) for p in parts)
+
+
+def _both(path):
+    from sheetgen.preflight import preflight_file
+
+    return preflight_file(path), read_dxf_parts(path)
+
+
+def test_a_gap_under_the_join_tolerance_is_closed_for_both(tmp_path):
+    # 0.005 mm: once joined by one reader (0.01 mm) and refused by the other (0.001 mm)
+    from sheetgen.io.dxf_read import JOIN_TOL_MM
+
+    gap = JOIN_TOL_MM / 2
+    doc = ezdxf.new(units=4)
+    msp = doc.modelspace()
+    pts = [(0, 0), (30, 0), (30, 20), (0, 20)]
+    for k in range(4):
+        a, b = pts[k], pts[(k + 1) % 4]
+        if k == 3:
+            b = (b[0] + gap, b[1])
+        msp.add_line(a, b)
+    path = tmp_path / "gap.dxf"
+    doc.saveas(path)
+    report, parts = _both(path)
+    assert report.contours == 1 and not [f for f in report.faults if f.kind == "open-contour"]
+    assert len(parts) == 1 and parts[0].polygon.area == pytest.approx(600, abs=0.01)
+
+
+def test_a_gap_over_the_join_tolerance_is_open_for_both(tmp_path):
+    from sheetgen.io.dxf_read import JOIN_TOL_MM
+
+    doc = ezdxf.new(units=4)
+    msp = doc.modelspace()
+    msp.add_lwpolyline([(0, 0), (30, 0), (30, 20), (0, 20), (3 * JOIN_TOL_MM, 0)])
+    path = tmp_path / "open.dxf"
+    doc.saveas(path)
+    from sheetgen.preflight import preflight_file
+
+    report = preflight_file(path)
+    assert "open-contour" in [f.kind for f in report.faults]
+    with pytest.raises(InputFileError, match="open contour"):
+        read_dxf_parts(path)
+
+
+def test_same_cut_layer_rule_for_both(tmp_path):
+    # a CUT layer in the table with nothing on it: both read the geometry on the other layers
+    doc = ezdxf.new(units=4)
+    doc.layers.add("CUT")
+    msp = doc.modelspace()
+    msp.add_lwpolyline([(0, 0), (40, 0), (40, 30), (0, 30)], close=True, dxfattribs={"layer": "OUTLINE"})
+    msp.add_circle((20, 15), 5, dxfattribs={"layer": "OUTLINE"})
+    path = tmp_path / "outline.dxf"
+    doc.saveas(path)
+    report, parts = _both(path)
+    assert report.layers == ("OUTLINE",) and report.contours == 2 == _contour_count(parts)
+    # with geometry on CUT, both read only CUT (the guide square on GUIDE is ignored)
+    msp.add_lwpolyline([(100, 0), (110, 0), (110, 10), (100, 10)], close=True, dxfattribs={"layer": "CUT"})
+    msp.add_lwpolyline([(200, 0), (210, 0), (210, 10), (200, 10)], close=True, dxfattribs={"layer": "GUIDE"})
+    doc.saveas(path)
+    report, parts = _both(path)
+    assert report.layers == ("CUT",) and report.contours == 1 == _contour_count(parts)
+    assert parts[0].polygon.bounds == (100, 0, 110, 10)
+
+
+def test_same_units_for_both(tmp_path):
+    # $INSUNITS = 1 (inches): 1 in = 25.4 mm exactly (NIST SP 811, the international inch)
+    doc = ezdxf.new(units=1)
+    doc.modelspace().add_lwpolyline([(0, 0), (2, 0), (2, 1), (0, 1)], close=True)
+    path = tmp_path / "inch.dxf"
+    doc.saveas(path)
+    from sheetgen.io.dxf_read import read_cut_file
+
+    geo = read_cut_file(path)
+    assert geo.units_state == "declared" and geo.factor == 25.4
+    report, parts = _both(path)
+    assert report.units == "inches" and report.contours == 1
+    assert parts[0].polygon.bounds == pytest.approx((0, 0, 50.8, 25.4))
+
+
+def test_unit_table_agrees_with_ezdxf():
+    # reference library: ezdxf.units.conversion_factor (codes it converts; it rounds the mile
+    # and gives the light year and parsec to three figures, so those are compared loosely)
+    from ezdxf import units
+
+    from sheetgen.io.dxf_read import UNIT_MM
+
+    compared = 0
+    for code, mm in UNIT_MM.items():
+        if code == 0:
+            continue
+        try:
+            ref = units.conversion_factor(code, units.MM)
+        except (TypeError, KeyError, ValueError):
+            continue  # ezdxf has no factor for microinches, mils or US survey feet
+        assert mm == pytest.approx(ref, rel=2e-3 if code in (19, 20) else 1e-8), code
+        compared += 1
+    assert compared >= 15
+    # the ones ezdxf cannot convert, from their definitions (NIST SP 811 / NIST HB 44):
+    assert UNIT_MM[8] == pytest.approx(25.4e-6)   # microinch
+    assert UNIT_MM[9] == pytest.approx(25.4e-3)   # mil = 1/1000 in
+    assert UNIT_MM[21] == pytest.approx(1200 / 3937 * 1000)  # US survey foot = 1200/3937 m
+
+
+def test_block_on_layer_zero_takes_the_insert_layer_for_both(tmp_path):
+    # DXF reference: an entity on layer 0 inside a block takes the layer of its INSERT (from memory)
+    doc = ezdxf.new(units=4)
+    blk = doc.blocks.new("PLATE")
+    blk.add_lwpolyline([(0, 0), (8, 0), (8, 6), (0, 6)], close=True)  # layer 0
+    msp = doc.modelspace()
+    msp.add_blockref("PLATE", (0, 0), dxfattribs={"layer": "CUT"})
+    msp.add_blockref("PLATE", (20, 0), dxfattribs={"layer": "NOTES"})
+    path = tmp_path / "plates.dxf"
+    doc.saveas(path)
+    report, parts = _both(path)
+    assert report.contours == 1 == _contour_count(parts)
+    assert parts[0].polygon.bounds == (0, 0, 8, 6)

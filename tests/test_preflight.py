@@ -73,8 +73,9 @@ def test_open_contour(tmp_path):
     doc, msp = _doc()
     msp.add_lwpolyline([(0, 0), (20, 0), (20, 20), (0, 20)], close=False, dxfattribs=CUT)
     report = preflight_file(_save(doc, tmp_path, "open.dxf"))
-    assert _kinds(report) == ["open-contour", "open-contour"]
-    assert _near(report.faults[0], 0, 0) and _near(report.faults[1], 0, 20)
+    # the only path is open, so the file has nothing to cut as well
+    assert _kinds(report) == ["nothing-to-cut", "open-contour", "open-contour"]
+    assert _near(report.faults[1], 0, 0) and _near(report.faults[2], 0, 20)
 
 
 def test_gap_wider_than_the_join_tolerance_is_open_and_a_closed_chain_is_not(tmp_path):
@@ -339,3 +340,96 @@ def test_bad_options(tmp_path):
     assert isinstance(result.exception, ParameterError) and "--kerf" in str(result.exception)
     result = CliRunner().invoke(command, [str(path), "--layer", "ENGRAVE"])
     assert isinstance(result.exception, InputFileError) and "ENGRAVE" in str(result.exception)
+
+
+# ---------------------------------------------------------------------------
+# nothing to cut, encodings, the entity ceiling (contract: README exit codes; DXF is
+# 8-bit text, UTF-8 from R2007 on: DXF reference, from memory)
+
+
+def _cli(*args):
+    from sheetgen.cli import main
+
+    return CliRunner().invoke(main, ["preflight", *map(str, args)])
+
+
+def test_text_only_file_has_nothing_to_cut(tmp_path):
+    doc, msp = _doc()
+    msp.add_text("ENGRAVE ME", dxfattribs={"layer": "CUT"}).set_placement((10, 10))
+    path = _save(doc, tmp_path, "words.dxf")
+    report = preflight_file(path)
+    assert _kinds(report) == ["nothing-to-cut"]
+    res = _cli(path)
+    assert res.exit_code == 1, res.output
+    assert "nothing to cut" in res.output and "clean" not in res.output
+
+
+def test_an_empty_drawing_has_nothing_to_cut(tmp_path):
+    doc, _ = _doc()
+    res = _cli(_save(doc, tmp_path, "empty.dxf"))
+    assert res.exit_code == 1 and "nothing-to-cut" in res.output, res.output
+
+
+def test_byte_order_marks_are_named_and_the_file_still_checked(tmp_path):
+    doc, msp = _doc()
+    _square(msp, 10, 10, 40)
+    plain = _save(doc, tmp_path, "plain.dxf")
+    raw = plain.read_bytes()
+    utf8 = tmp_path / "bom8.dxf"
+    utf8.write_bytes(b"\xef\xbb\xbf" + raw)
+    utf16 = tmp_path / "bom16.dxf"
+    utf16.write_bytes(raw.decode("utf-8").encode("utf-16"))  # Python writes the BOM first
+    assert preflight_file(plain).clean
+    for path, words in ((utf8, "UTF-8 byte-order mark"), (utf16, "UTF-16")):
+        report = preflight_file(path)
+        assert _kinds(report) == ["encoding"], report.faults
+        assert words in report.faults[0].message
+        assert report.contours == 1  # the square was read all the same
+        res = _cli(path)
+        assert res.exit_code == 1 and words in res.output, res.output
+
+
+def test_utf16_without_a_mark_is_refused_with_a_reason(tmp_path):
+    doc, msp = _doc()
+    _square(msp, 10, 10, 40)
+    raw = _save(doc, tmp_path, "plain.dxf").read_bytes()
+    path = tmp_path / "wide.dxf"
+    path.write_bytes(raw.decode("utf-8").encode("utf-16-le"))
+    res = _cli(path)
+    assert res.exit_code == 2 and "UTF-16" in res.output and "Traceback" not in res.output, res.output
+
+
+def test_text_in_another_encoding_gets_a_note(tmp_path):
+    doc = ezdxf.new("R2018")  # R2007 and later are UTF-8 by definition
+    doc.units = 4
+    _square(doc.modelspace(), 10, 10, 40)
+    doc.modelspace().add_text("CAFE", dxfattribs={"layer": "LABEL"})
+    path = _save(doc, tmp_path, "latin.dxf")
+    path.write_bytes(path.read_bytes().replace(b"CAFE", "CAFÉ".encode("latin-1")))
+    report = preflight_file(path)
+    assert report.clean
+    assert any("not valid utf-8" in n for n in report.notes), report.notes
+
+
+def test_more_entities_than_the_ceiling_is_refused(tmp_path, monkeypatch):
+    import sheetgen.io.dxf_read as dxf_read
+
+    doc, msp = _doc()
+    for k in range(12):
+        _square(msp, 10 * k, 0, 5)
+    path = _save(doc, tmp_path, "many.dxf")
+    monkeypatch.setattr(dxf_read, "MAX_ENTITIES", 10)
+    res = _cli(path)
+    assert res.exit_code == 2 and "more than 10 entities" in res.output, res.output
+    monkeypatch.setattr(dxf_read, "MAX_ENTITIES", 12)
+    assert _cli(path).exit_code == 0
+
+
+def test_the_documented_ceiling_is_the_one_enforced():
+    from pathlib import Path
+
+    from sheetgen.io.dxf_read import MAX_ENTITIES
+
+    shown = f"{MAX_ENTITIES:,}"
+    assert shown in command.help
+    assert shown in (Path(__file__).resolve().parents[1] / "README.md").read_text(encoding="utf-8")

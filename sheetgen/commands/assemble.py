@@ -18,7 +18,7 @@ from pathlib import Path
 
 import click
 
-from sheetgen.cli import set_option
+from sheetgen.cli import into_existing_option, set_option
 
 CAUTIONS = (
     "The model is nominal: test the fits with a coupon cut before cutting a whole kit.",
@@ -31,22 +31,26 @@ CAUTIONS = (
 @click.command("assemble")
 @click.argument("params", type=click.Path(dir_okay=False, path_type=str))
 @click.option("-o", "--out", "out_dir", required=True, type=click.Path(file_okay=False),
-              help="Folder to write assembly.step and assembly.svg into (replaced when complete).")
+              help="Folder to write assembly.step and assembly.svg into (a new or empty folder, or one sheetgen "
+                   "wrote before).")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object instead of the summary.")
 @click.option("--sweep-step", "sweep_step_deg", type=click.FloatRange(0.1, 2.0), default=1.0, show_default=True,
               help="Angle step of the clearance sweep through the tracking range, degrees (at most 2).")
+@into_existing_option
 @set_option
-def command(params: str, out_dir: str, as_json: bool, sweep_step_deg: float, overrides: tuple[str, ...]) -> None:
+def command(params: str, out_dir: str, as_json: bool, sweep_step_deg: float, overrides: tuple[str, ...],
+            into_existing: bool) -> None:
     """Build the kit in 3D, write it as STEP with a picture, and check it:
     interference, floating parts, tabs in slots, clearance of the turning frame
     through the tracking range, gear mesh, mass and CG."""
-    from sheetgen.io.output import staged_dir
+    from sheetgen.io.output import check_output_dir, staged_dir
     from sheetgen.io.step import write_step, write_svg
     from sheetgen.kit import build_kit
     from sheetgen.model3d import build_assembly, build_model, check_model
     from sheetgen.spec import load_spec
 
     start = time.perf_counter()
+    check_output_dir(out_dir, into_existing=into_existing)  # refuse a bad target before the long work
     spec = load_spec(params, overrides)
     kit = build_kit(spec)
     t_import = time.perf_counter()
@@ -56,7 +60,7 @@ def command(params: str, out_dir: str, as_json: bool, sweep_step_deg: float, ove
     model = build_model(kit, spec)
     report = check_model(model, kit, spec, sweep_step_deg)
     t_write = time.perf_counter()
-    with staged_dir(out_dir) as tmp:
+    with staged_dir(out_dir, into_existing=into_existing) as tmp:
         write_step(build_assembly(model, name=Path(params).stem), tmp / "assembly.step")
         write_svg(model.bodies, tmp / "assembly.svg", f"sheetgen kit: {Path(params).stem}")
     written = time.perf_counter() - t_write

@@ -8,32 +8,39 @@ from pathlib import Path
 
 import click
 
-from sheetgen.cli import set_option
+from sheetgen.cli import into_existing_option, set_option
 
 
 @click.command("build")
 @click.argument("params", required=False, type=click.Path(dir_okay=False))
 @click.option("--kits", type=int, default=1, show_default=True, help="Kits in the production run.")
 @click.option("-o", "--out", "out_dir", required=True, type=click.Path(file_okay=False),
-              help="Folder to write into (replaced when complete).")
+              help="Folder to write into (a new or empty folder, or one sheetgen wrote before).")
 @click.option("--dxf-version", type=click.Choice(["R2000", "R12"]), default="R2000", show_default=True)
 @click.option("--model/--no-model", default=True, show_default=True,
               help="Build, check and write the 3D model (model/assembly.step, model/assembly.svg).")
+@click.option("--allow-failing", "allow_failing", is_flag=True, default=False,
+              help="Exit 0 even when a design check fails (the default is exit code 4, so that a batch "
+                   "script never cuts a kit that cannot work without being told).")
+@into_existing_option
 @set_option
-def command(params, kits, out_dir, dxf_version, model, overrides):
+def command(params, kits, out_dir, dxf_version, model, overrides, into_existing, allow_failing):
     """Parts, nested sheets in cut order, report.html and summary.json for a production run.
 
-    Without PARAMS it runs the demo parameters that ship with sheetgen.
+    Without PARAMS it runs the demo parameters that ship with sheetgen. When a
+    design check fails the files are still written (report.html says which check
+    and why) and the exit code is 4, unless --allow-failing is given.
     """
     from sheetgen.build import run_build
     from sheetgen.commands.nest import Progress
-    from sheetgen.io.output import staged_dir
+    from sheetgen.io.output import check_output_dir, staged_dir
     from sheetgen.io.partfiles import write_part_files
     from sheetgen.io.report import render_report
     from sheetgen.io.sheets import write_sheets
     from sheetgen.spec import demo_params_path, load_spec
 
     start = time.perf_counter()
+    check_output_dir(out_dir, into_existing=into_existing)  # refuse a bad target before the long work
     spec = load_spec(params if params is not None else demo_params_path(), overrides)
     progress = Progress()
     try:
@@ -47,7 +54,10 @@ def command(params, kits, out_dir, dxf_version, model, overrides):
         solids, check = assemble(build.kit, spec)
         assembly = (solids, check)
         build.summary["assembly"] = {k: v for k, v in check.to_json().items() if k not in ("timing_s", "occ_calls")}
-    with staged_dir(out_dir) as tmp:
+    failing = failing_checks(build.summary)
+    build.summary["checks_ok"] = not failing
+    build.summary["failing_checks"] = failing
+    with staged_dir(out_dir, into_existing=into_existing) as tmp:
         (tmp / "parts").mkdir()
         (tmp / "sheets").mkdir()
         write_part_files(build.kit, spec, tmp / "parts", dxf_version)
@@ -75,3 +85,19 @@ def command(params, kits, out_dir, dxf_version, model, overrides):
                f"laser time {s['cut_time_s'] / 60:.1f} min" + (f", cost {s['cost']:.2f}" if s["cost"] is not None else ""))
     click.echo(("design checks pass" if s["checks_ok"] else "A DESIGN CHECK FAILS: see report.html")
                + f"; written to {out_dir} in {time.perf_counter() - start:.1f} s")
+    if failing:
+        click.echo(f"design check failing: {', '.join(failing)} (the reasons are in {out_dir}/report.html)"
+                   + ("; exit code 0 because of --allow-failing" if allow_failing else
+                      "; exit code 4 (--allow-failing to accept)"), err=True)
+        if not allow_failing:
+            click.get_current_context().exit(4)
+
+
+def failing_checks(summary: dict) -> list[str]:
+    """Names of the binding design checks that fail: the balance and drive checks,
+    and the 3D assembly check when the model was built."""
+    out = [c["name"] for c in summary["balance"]["checks"] if not c["pass"] and c.get("binding", True)]
+    assembly = summary.get("assembly")
+    if assembly is not None and not assembly.get("ok", False):
+        out.append("3D assembly")
+    return out

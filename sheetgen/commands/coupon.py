@@ -2,10 +2,7 @@
 
 from __future__ import annotations
 
-
 import click
-
-from sheetgen.errors import InputFileError
 
 LASER_CAUTION = ("Laser safety: cut only materials known to be safe (never PVC, vinyl or other chlorinated "
                  "plastics), run the fume extraction, keep a fire extinguisher at hand and never leave the "
@@ -26,15 +23,13 @@ def command(thickness: float, square: float, output: str, dxf_version: str) -> N
     without kerf compensation; after cutting, measure the square and run
     `sheetgen kerf`."""
     from sheetgen.coupon import coupon_dxf_bytes, make_coupon, width_label
-    from sheetgen.io.output import staged_file
+    from sheetgen.io.output import check_output_file, staged_file
 
+    check_output_file(output)  # refuse a bad target before any work
     coupon = make_coupon(thickness, square)
     data = coupon_dxf_bytes(coupon, dxf_version)
-    try:
-        with staged_file(output) as tmp:
-            tmp.write_bytes(data)
-    except OSError as exc:
-        raise InputFileError(f"-o {output}: cannot be written ({exc.strerror or exc})") from None
+    with staged_file(output) as tmp:
+        tmp.write_bytes(data)
     w, h = coupon.size_mm
     widths = coupon.slot_widths_mm
     click.echo(f"wrote {output}: {len(widths)} slots {width_label(widths[0])} to {width_label(widths[-1])} mm, "

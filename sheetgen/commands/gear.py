@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-
 import click
 
 GEAR_CAUTION = ("Cautions: gears pinch fingers, so guard the mesh of a running drive. Cut only materials known "
@@ -56,12 +55,12 @@ def command(module_mm, teeth, pressure_angle_deg, shift, backlash_mm, bore_mm, b
     included; the kerf is compensated exactly (the cut flanks are involutes
     of the same base circle). The sizes printed are those of the finished
     gear."""
-    from sheetgen.errors import InputFileError
     from sheetgen.gears import GearSpec, Hub, gear_blank
     from sheetgen.geometry.involute import DEFAULT_CHORD_TOL_MM
     from sheetgen.io.dxf import write_cut_dxf
-    from sheetgen.io.output import staged_file
+    from sheetgen.io.output import check_output_file, staged_file
 
+    check_output_file(output)  # refuse a bad target before any work
     tol = DEFAULT_CHORD_TOL_MM if chord_tol_mm is None else chord_tol_mm
     spec = GearSpec(module_mm=module_mm, teeth=teeth, pressure_angle_deg=pressure_angle_deg, shift=shift,
                     backlash_mm=backlash_mm,
@@ -69,12 +68,9 @@ def command(module_mm, teeth, pressure_angle_deg, shift, backlash_mm, bore_mm, b
                             lightening=lightening))
     g = gear_blank(spec, kerf_mm, tol, labels=OPTION_LABELS)
 
-    try:
-        with staged_file(output) as tmp:
-            write_cut_dxf(tmp, [g.polygon], circles=g.round_holes_mm, circle_offset_mm=kerf_mm / 2.0,
-                          dxf_version=dxf_version)
-    except OSError as exc:
-        raise InputFileError(f"-o {output}: cannot be written ({exc.strerror or exc})") from None
+    with staged_file(output) as tmp:
+        write_cut_dxf(tmp, [g.polygon], circles=g.round_holes_mm, circle_offset_mm=kerf_mm / 2.0,
+                      dxf_version=dxf_version)
 
     for w in g.warnings:
         click.echo(f"warning: {w}", err=True)

@@ -25,8 +25,9 @@ def _kerf_range() -> tuple[float, float]:
 def command(file: str, sheet: str | None, kerf: float | None, layer: str | None) -> None:
     """Check FILE.dxf for faults: open contours, overlapping or touching parts,
     parts off the sheet, duplicate or zero-length segments, features narrower
-    than the kerf can cut, missing units. Exit code 1 when there is any, 0 when
-    the file is clean."""
+    than the kerf can cut, missing units, nothing to cut, a byte-order mark.
+    Exit code 1 when there is any, 0 when the file is clean; 2 when the file
+    cannot be read or holds more than 250,000 entities (the ceiling)."""
     from sheetgen.preflight import parse_sheet, preflight_file
 
     sheet_mm = parse_sheet(sheet) if sheet is not None else None

@@ -28,7 +28,15 @@ from dataclasses import dataclass
 import numpy as np
 from shapely.geometry import MultiPoint, Polygon
 
+from sheetgen.errors import GeometryBug, ParameterError
 from sheetgen.part import Placement
+
+
+
+class TabMissesSlot(GeometryBug):
+    """This tab placement does not pass through this slot part placement. The kit
+    builder tries every pair and skips these; one that escapes is a bug (exit 3)."""
+
 
 FIT_CLEARANCE_MM = {"press": -0.04, "snug": 0.0, "slip": 0.08}
 
@@ -37,7 +45,7 @@ def fit_clearance_mm(fit: str) -> float:
     try:
         return FIT_CLEARANCE_MM[fit]
     except KeyError:
-        raise ValueError(f"fit {fit!r}: must be one of {', '.join(FIT_CLEARANCE_MM)}") from None
+        raise ParameterError(f"fit {fit!r}: must be one of {', '.join(FIT_CLEARANCE_MM)}") from None
 
 
 def default_tab_width_mm(thickness_mm: float, tab_width_mm: float = 0.0) -> float:
@@ -98,7 +106,7 @@ def slot_footprint(tab: Polygon, tab_thickness_mm: float, tab_at: Placement, slo
     """Where a tab (a rectangle in its part's plane, ``tab_thickness_mm`` thick)
     pierces the slot part: its footprint in the slot part's plane.
 
-    Raises ValueError if the tab does not pass squarely through the slot part.
+    Raises :class:`TabMissesSlot` if the tab does not pass squarely through the slot part.
     """
     xy = np.asarray(tab.exterior.coords[:-1], dtype=float)
     corners = np.vstack([np.column_stack([xy, np.zeros(len(xy))]),
@@ -107,10 +115,10 @@ def slot_footprint(tab: Polygon, tab_thickness_mm: float, tab_at: Placement, slo
     local = (kit - np.asarray(slot_at.translation_mm)) @ slot_at.matrix  # inverse of a rotation
     z = local[:, 2]
     if z.min() < -1e-6 or z.max() > slot_thickness_mm + 1e-6:
-        raise ValueError(f"tab spans z {z.min():.3f}..{z.max():.3f} in the slot part, not 0..{slot_thickness_mm:g}")
+        raise TabMissesSlot(f"tab spans z {z.min():.3f}..{z.max():.3f} in the slot part, not 0..{slot_thickness_mm:g}")
     footprint = MultiPoint([tuple(p) for p in np.round(local[:, :2], 9)]).convex_hull
     if not isinstance(footprint, Polygon) or footprint.area <= 0:
-        raise ValueError("tab has no footprint in the slot part (the parts do not cross)")
+        raise TabMissesSlot("tab has no footprint in the slot part (the parts do not cross)")
     return footprint
 
 

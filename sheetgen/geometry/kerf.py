@@ -12,7 +12,7 @@ from __future__ import annotations
 from shapely import set_precision
 from shapely.geometry import MultiPolygon, Polygon
 
-from sheetgen.errors import GeometryBug
+from sheetgen.errors import GeometryBug, ParameterError
 
 # A mitre join reaches 1/sin(theta/2) times the offset out from a corner of
 # interior angle theta. 20 keeps every corner down to about 6 degrees sharp.
@@ -39,7 +39,7 @@ def offset_polygon(polygon: Polygon, distance_mm: float) -> Polygon:
 def cut_outline(polygon: Polygon, kerf_mm: float) -> Polygon:
     """The path the beam follows to leave ``polygon`` (nominal) behind."""
     if kerf_mm < 0:
-        raise ValueError("kerf must not be negative")
+        raise ParameterError(f"kerf {kerf_mm:g} mm: must not be negative")
     return offset_polygon(polygon, kerf_mm / 2.0)
 
 
