@@ -48,8 +48,8 @@ def run_build(spec, kits: int, progress=None, jobs: int | None = None) -> BuildR
     import os
 
     from sheetgen.cutplan import settings_from_spec
-    from sheetgen.io.sheets import map_jobs
     from sheetgen.errors import GeometryBug, ParameterError
+    from sheetgen.io.sheets import map_jobs
     from sheetgen.kit import build_kit
     from sheetgen.mechanics.check import balance_check
     from sheetgen.nesting import nest, sheet_patterns, verify
@@ -86,8 +86,8 @@ def _r(v, nd=3):
 
 def _summary(spec, kit, kits, balance, drive, result, runs) -> dict:
     from sheetgen.io.sheets import sheet_name
-    from sheetgen.mechanics.materials import sheet_material
     from sheetgen.mechanics.massprops import part_mass_each_kg
+    from sheetgen.mechanics.materials import sheet_material
     from sheetgen.production import patterns_json
 
     density = sheet_material(spec.sheet.material).density_kg_m3

@@ -26,7 +26,14 @@ from shapely import affinity
 from shapely.geometry import Point, Polygon, box
 
 from sheetgen.errors import GeometryBug, SheetgenError
-from sheetgen.nesting import NestItem, RunTooLarge, lower_bound_sheets, nest, sheet_patterns, verify
+from sheetgen.nesting import (
+    NestItem,
+    RunTooLarge,
+    lower_bound_sheets,
+    nest,
+    sheet_patterns,
+    verify,
+)
 from sheetgen.nesting.nfp import clearance_outline, no_fit_polygon
 
 TOL = 1e-6

@@ -94,7 +94,13 @@ def command(params, kits, extras, sheet, strip_width, rotations, spacing, margin
     from sheetgen.io.output import staged_dir
     from sheetgen.io.sheets import write_sheets
     from sheetgen.nesting import nest, sheet_patterns, verify
-    from sheetgen.production import extra_items, kit_items, nest_summary, parse_rotations, placed_sheets
+    from sheetgen.production import (
+        extra_items,
+        kit_items,
+        nest_summary,
+        parse_rotations,
+        placed_sheets,
+    )
 
     start = time.perf_counter()
     angles = parse_rotations(rotations) if rotations is not None else None
