@@ -163,6 +163,24 @@ class _Clock:
             self.progress(fraction, message)
 
 
+class _StageClock:
+    """The ceiling of one stage of a large run: the run's ceiling, or the stage's
+    share of it, whichever comes first (so that a late stage is not starved)."""
+
+    def __init__(self, clock: _Clock, deadline: float):
+        self.clock = clock
+        self.deadline = deadline
+        self.fired = False
+
+    def stop(self) -> bool:
+        if not self.fired and (self.clock.stop() or time.monotonic() > self.deadline):
+            self.fired = True
+        return self.fired
+
+    def report(self, fraction: float, message: str) -> None:
+        self.clock.report(fraction, message)
+
+
 class _Budget:
     """The work budget of one search stage, and whether it ran out."""
 
@@ -265,14 +283,14 @@ def nest(items: Sequence[NestItem], *, sheet_mm: tuple[float, float] | None = No
     usable = (margin, margin, sheet_w - margin, sheet_h - margin)
     area_lower = max(1, math.ceil(total_area / (usable_w * usable_h) - 1e-9))
     lower = lower_bound_sheets(items, (sheet_w, sheet_h), margin, spacing)
-    sheets, unplaced, stages = _sheet_run(lib, counts, usable, lower, work, budget, rng, clock)
+    sheets, unplaced, stages, clocks = _sheet_run(lib, counts, usable, lower, work, budget, rng, clock, limit)
     clock.report(1.0, "done")
     return _result(items, lib, sheets, unplaced, (sheet_w, sheet_h), margin, spacing, None, area_lower, lower,
-                   _stopped_by(clock, stages), work.units)
+                   _stopped_by(clock, stages, clocks), work.units)
 
 
-def _stopped_by(clock: _Clock, stages: list[_Budget]) -> str:
-    if clock.fired:
+def _stopped_by(clock: _Clock, stages: list[_Budget], clocks=()) -> str:
+    if clock.fired or any(c.fired for c in clocks):
         return "time_limit"
     if any(s.hit for s in stages):
         return "effort"
@@ -286,14 +304,17 @@ def _progress_of(clock: _Clock, work: Work, w0: int, units: int, f0: float, f1: 
     return make
 
 
-def _sheet_run(lib, counts, usable, lower, work, budget, rng, clock):
+def _sheet_run(lib, counts, usable, lower, work, budget, rng, clock, limit_s):
     """Sheets for ``counts`` copies of each item: batches, patterns repeated, the rest nested (module doc).
 
-    Returns (sheets as lists of (item, shape id, px, py), unplaced items, stages)."""
+    Each stage gets its share of the work budget and the same share of the
+    wall-clock ceiling. Returns (sheets as lists of (item, shape id, px, py),
+    unplaced items, stage budgets, stage clocks)."""
     remaining = list(counts)
     sheets: list[list[tuple]] = []
     unplaced: list[int] = []
     stages: list[_Budget] = []
+    clocks: list[_StageClock] = []
     total0 = sum(counts)
     while True:
         total = sum(remaining)
@@ -305,12 +326,16 @@ def _sheet_run(lib, counts, usable, lower, work, budget, rng, clock):
         share = left if last else left // 2
         stage = _Budget(work, work.units + share)
         stages.append(stage)
+        now = time.monotonic()
+        left_s = max(0.0, clock.deadline - now)
+        stage_clock = _StageClock(clock, now + (left_s if last or left == 0 else left_s * share / left))
+        clocks.append(stage_clock)
         f0 = 1.0 - total / total0
         f1 = 1.0 - (total - sum(batch)) / total0 if not last else 1.0
         part_items = [i for i, q in enumerate(batch) for _ in range(q)]
         # a batch may use one sheet more than its share of the whole run's bound
         share_lower = 1 if not last else max(1, lower - len(sheets))
-        best = _sheet_search(lib, part_items, usable, share_lower, stage, rng, clock,
+        best = _sheet_search(lib, part_items, usable, share_lower, stage, rng, stage_clock,
                              _progress_of(clock, work, work.units, share, f0, f1), compact=last)
         st = best.final
         got = [[] for _ in st.sheets]
@@ -329,7 +354,7 @@ def _sheet_run(lib, counts, usable, lower, work, budget, rng, clock):
         for _ in range(times):
             sheets.extend(block)
         remaining = [r - times * u for r, u in zip(remaining, used)]
-    return sheets, unplaced, stages
+    return sheets, unplaced, stages, clocks
 
 
 def _batch(remaining: list[int]) -> list[int]:
