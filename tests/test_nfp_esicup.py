@@ -1,7 +1,7 @@
 """No-fit polygons and inner-fit rectangles against the ESICUP reference files.
 
 Outside source: the ESICUP 2D irregular data sets (shapes0.xml, shapes1.xml,
-swim.xml; CC0; copied unmodified into shared/benchmarks/esicup, see its
+swim.xml; CC0; copied unmodified into tests/data/esicup, see its
 README.md), which store a no-fit polygon (``nfps/nfp``) for every ordered pair
 of (piece, angle) and an inner-fit polygon (``ifps/ifp``) for every piece.
 
@@ -34,7 +34,7 @@ from shapely import affinity
 from sheetgen.nesting.esicup import read_instance
 from sheetgen.nesting.nfp import inner_fit_rect, no_fit_polygon, shape_of
 
-ESICUP = Path(__file__).resolve().parents[2] / "shared" / "benchmarks" / "esicup"
+ESICUP = Path(__file__).resolve().parent / "data" / "esicup"
 # (polygon, polygon) pairs whose stored NFP does not describe those pieces
 WRONG_IN_FILE = {("polygon3", "polygon4"), ("polygon4", "polygon3")}
 
