@@ -132,7 +132,7 @@ def test_inner_fit_rectangles_match_the_stored_ones(instances, name):
 
 
 def test_jakobs_json_reader():
-    # Source: the README table of shared/benchmarks/esicup (25 pieces of 25
+    # Source: the README table of tests/data/esicup (25 pieces of 25
     # types, strip width 40, total area 392, angles 0/90/180/270).
     inst = read_instance(ESICUP / "jakobs" / "jakobs1.json")
     assert len(inst.items) == 25
@@ -144,7 +144,7 @@ def test_jakobs_json_reader():
 
 @pytest.mark.parametrize("name, pieces, area, width", [("shapes0", 43, 1596.0, 40.0), ("swim", 48, 25441305.0, 5752.0)])
 def test_xml_reader_counts(instances, name, pieces, area, width):
-    # Source: README table / instances_summary.csv of shared/benchmarks/esicup.
+    # Source: README table / instances_summary.csv of tests/data/esicup.
     inst = instances[name]
     assert sum(it.qty for it in inst.items) == pieces
     assert inst.total_area == pytest.approx(area)

@@ -71,12 +71,13 @@ BATCH_PARTS = 440            # parts in one batch of a large run (about 20 demo 
 
 # The ceiling (see the module doc). The per-vertex and per-part figures are the
 # memory a placed part costs until its sheet is written (placed polygon,
-# contours, marks, layout records), measured with tests/bench/bench_scaling.py
-# on the demo kit and rounded up.
+# contours, marks, layout records): the peak of `nest --kits 1000` on the demo
+# kit (236 MB for 21,000 parts and 5 million vertices) and of 4000 kits (646 MB
+# for 84,000 parts) are about half of what these figures estimate (430 MB, 1.3 GB).
 MEMORY_LIMIT_BYTES = 2 * 1024**3
 MAX_PARTS = 200_000
-BYTES_PER_VERTEX = 150
-BYTES_PER_PART = 4_000
+BYTES_PER_VERTEX = 48
+BYTES_PER_PART = 2_000
 BYTES_FIXED = 150 * 1024**2
 
 
