@@ -57,7 +57,7 @@ def main() -> None:
         body = u[:-1] or u
         fill = f"{min(body) * 100:3.0f}-{max(body) * 100:3.0f} ({sum(body) / len(body) * 100:3.0f})"
         print(f"{n:5d} {parts:6d} {len(result.sheets):6d} {result.lower_bound_sheets:6d} "
-              f"{result.area_lower_bound_sheets:5d} {fill:>17s} {u[-1] * 100:5.1f}% {result.remnant_mm[0]:7.0f}m "
+              f"{result.area_lower_bound_sheets:5d} {fill:>17s} {u[-1] * 100:5.1f}% {result.remnant_mm[0]:6.0f}mm "
               f"{len(sheet_patterns(result)):5d} {result.stopped_by:>10s} {wall:7.1f} {cpu:6.1f}", flush=True)
 
 
