@@ -475,3 +475,23 @@ def test_nest_command_refuses_a_run_above_the_ceiling(tmp_path):
     assert res.exit_code == 2
     assert "parts" in res.output and "limit" in res.output and "Traceback" not in res.output
     assert not out.exists()
+
+
+def test_last_sheet_emptied_into_the_gaps_of_the_others():
+    # Hand count: a 20 mm square on a 25 mm sheet leaves a 5 mm strip along two
+    # sides; a 4 mm square fits there, so a second sheet holding only it goes.
+    from sheetgen.nesting.engine import _empty_last
+    from sheetgen.nesting.place import ShapeLibrary, Work
+
+    lib = ShapeLibrary([box(0, 0, 20, 20), box(0, 0, 4, 4)], [(0.0,), (0.0,)], 0.0, 1e-7, 1000.0)
+    usable = (0.0, 0.0, 25.0, 25.0)
+    big, small = lib.item_shapes[0][0], lib.item_shapes[1][0]
+    sheets = [[(0, big, 0, 0)], [(1, small, 0, 0)]]
+    out = _empty_last(lib, sheets, usable, Work(), lambda: False)
+    assert len(out) == 1 and sorted(e[0] for e in out[0]) == [0, 1]
+    x, y = out[0][1][2] / lib.scale, out[0][1][3] / lib.scale
+    assert x >= 20.0 - 1e-6 or y >= 20.0 - 1e-6  # beside the big square, not on it
+    # a part too big for any gap stays where it is
+    lib2 = ShapeLibrary([box(0, 0, 20, 20), box(0, 0, 6, 6)], [(0.0,), (0.0,)], 0.0, 1e-7, 1000.0)
+    sheets2 = [[(0, lib2.item_shapes[0][0], 0, 0)], [(1, lib2.item_shapes[1][0], 0, 0)]]
+    assert len(_empty_last(lib2, sheets2, usable, Work(), lambda: False)) == 2

@@ -45,6 +45,7 @@ its part and vertex counts; a run above ``memory_limit_bytes`` (default
 from __future__ import annotations
 
 import math
+import pickle
 import random
 import time
 from collections.abc import Callable, Sequence
@@ -58,7 +59,7 @@ from sheetgen.nesting.bound import lower_bound_sheets
 from sheetgen.nesting.decode import Decoded, Decoder
 from sheetgen.nesting.model import NestItem, NestResult, PlacedPart
 from sheetgen.nesting.nfp import rotate_ccw
-from sheetgen.nesting.place import RULES, ShapeLibrary, Work
+from sheetgen.nesting.place import RULES, ShapeLibrary, Sheet, Work, place_one
 from sheetgen.nesting.search import late_acceptance
 
 # Work units per second of the budget, measured on the project's two-core machine
@@ -67,6 +68,7 @@ WORK_PER_SECOND = 1_800_000  # fitted rate about 2.3 million; kept lower for a s
 EFFORT_UNITS = 1_000_000     # work units in one unit of effort
 EFFORT_PER_SECOND = WORK_PER_SECOND / EFFORT_UNITS
 FIRST_SHARE = 0.3            # of a batch's budget, at most, for the starting layouts beyond the first
+SEARCHES = 2                 # independent improvement searches per stage (run on --jobs processes)
 BATCH_PARTS = 440            # parts in one batch of a large run (about 20 demo kits)
 
 # The ceiling (see the module doc). The per-vertex and per-part figures are the
@@ -200,7 +202,7 @@ def nest(items: Sequence[NestItem], *, sheet_mm: tuple[float, float] | None = No
          strip_width_mm: float | None = None, margin_mm: float = 0.0, spacing_mm: float = 0.0,
          time_limit_s: float = 10.0, effort: float | None = None, seed: int = 1,
          progress: Callable[[float, str], None] | None = None,
-         memory_limit_bytes: float = MEMORY_LIMIT_BYTES) -> NestResult:
+         memory_limit_bytes: float = MEMORY_LIMIT_BYTES, jobs: int = 1) -> NestResult:
     """Nest ``items`` on sheets of ``sheet_mm`` or on a strip of ``strip_width_mm``.
 
     Exactly one of ``sheet_mm`` and ``strip_width_mm`` is given. ``effort``
@@ -208,7 +210,9 @@ def nest(items: Sequence[NestItem], *, sheet_mm: tuple[float, float] | None = No
     the deterministic work budget; ``time_limit_s`` the wall-clock ceiling of
     the search. Raises :class:`SheetgenError` for bad input, including a part
     that fits the usable area in none of its allowed rotations, and
-    :class:`RunTooLarge` for a run above the ceiling.
+    :class:`RunTooLarge` for a run above the ceiling. ``jobs`` processes run
+    the :data:`SEARCHES` improvement searches of each stage side by side; the
+    layout does not depend on it.
     """
     _validate_items(items)
     if (sheet_mm is None) == (strip_width_mm is None):
@@ -273,18 +277,26 @@ def nest(items: Sequence[NestItem], *, sheet_mm: tuple[float, float] | None = No
                        for i in part_items) + spacing * len(part_items) + 1.0
         usable = (margin, margin, margin + open_len, sheet_h - margin)
         progress_of = _progress_of(clock, work, 0, budget, 0.0, 1.0)
-        best = _strip_search(lib, part_items, usable, orders, stage, rng, clock, progress_of)
-        length = _used_x(best) + margin
+        open_dec = Decoder(lib, part_items, usable, 1, work)
+        # "lowest first" rules would lay an open strip out in one long row: not as a start
+        orders = [(plan, rule) for plan, rule in orders if RULES[rule][0] <= 1.0]
+        first = _first_layout(open_dec, orders, stage, clock, progress_of, _used_x)
+        stage_clock = _StageClock(clock, clock.deadline)
+        placements, unplaced_parts, _ = _improve(lib, "strip", part_items, usable, 1, first, stage, rng, stage_clock,
+                                                 True, jobs)
+        length = max(px / lib.scale + lib.shapes[sid].width for _p, _si, sid, px, py in placements) + margin
         clock.report(1.0, "done")
-        sheets = [[(part_items[p], sid, px, py) for p, _si, sid, px, py in best.final.placements]]
-        unplaced = [part_items[p] for p in best.final.unplaced]
+        sheets = [[(part_items[p], sid, px, py) for p, _si, sid, px, py in placements]]
+        unplaced = [part_items[p] for p in unplaced_parts]
         return _result(items, lib, sheets, unplaced, (length, sheet_h), margin, spacing, length, 1, 1,
-                       _stopped_by(clock, [stage]), work.units)
+                       _stopped_by(clock, [stage], [stage_clock]), work.units)
 
     usable = (margin, margin, sheet_w - margin, sheet_h - margin)
     area_lower = max(1, math.ceil(total_area / (usable_w * usable_h) - 1e-9))
     lower = lower_bound_sheets(items, (sheet_w, sheet_h), margin, spacing)
-    sheets, unplaced, stages, clocks = _sheet_run(lib, counts, usable, lower, work, budget, rng, clock, limit)
+    sheets, unplaced, stages, clocks = _sheet_run(lib, counts, usable, lower, work, budget, rng, clock, jobs)
+    if not unplaced and len(sheets) > lower:
+        sheets = _empty_last(lib, sheets, usable, work, clock.stop)
     clock.report(1.0, "done")
     return _result(items, lib, sheets, unplaced, (sheet_w, sheet_h), margin, spacing, None, area_lower, lower,
                    _stopped_by(clock, stages, clocks), work.units)
@@ -305,7 +317,7 @@ def _progress_of(clock: _Clock, work: Work, w0: int, units: int, f0: float, f1: 
     return make
 
 
-def _sheet_run(lib, counts, usable, lower, work, budget, rng, clock, limit_s):
+def _sheet_run(lib, counts, usable, lower, work, budget, rng, clock, jobs):
     """Sheets for ``counts`` copies of each item: batches, patterns repeated, the rest nested (module doc).
 
     Each stage gets its share of the work budget and the same share of the
@@ -336,15 +348,15 @@ def _sheet_run(lib, counts, usable, lower, work, budget, rng, clock, limit_s):
         part_items = [i for i, q in enumerate(batch) for _ in range(q)]
         # a batch may use one sheet more than its share of the whole run's bound
         share_lower = 1 if not last else max(1, lower - len(sheets))
-        best = _sheet_search(lib, part_items, usable, share_lower, stage, rng, stage_clock,
-                             _progress_of(clock, work, work.units, share, f0, f1), compact=last)
-        st = best.final
-        got = [[] for _ in st.sheets]
-        for p, si, sid, px, py in st.placements:
+        placements, unplaced_parts, n_sheets = _sheet_search(
+            lib, part_items, usable, share_lower, stage, rng, stage_clock,
+            _progress_of(clock, work, work.units, share, f0, f1), compact=last, jobs=jobs)
+        got = [[] for _ in range(n_sheets)]
+        for p, si, sid, px, py in placements:
             got[si].append((part_items[p], sid, px, py))
         if last:
             sheets.extend(got)
-            unplaced.extend(part_items[p] for p in st.unplaced)
+            unplaced.extend(part_items[p] for p in unplaced_parts)
             break
         block = got[:-1] if len(got) > 1 else got
         used = [0] * len(counts)
@@ -356,6 +368,51 @@ def _sheet_run(lib, counts, usable, lower, work, budget, rng, clock, limit_s):
             sheets.extend(block)
         remaining = [r - times * u for r, u in zip(remaining, used)]
     return sheets, unplaced, stages, clocks
+
+
+def _empty_last(lib, sheets, usable, work, stop):
+    """Try to move every part of the last sheet into the free space of the
+    others (largest part first, each onto the latest sheet that takes it);
+    when all of them find a place, the last sheet goes. Sheets that are alike
+    (repeated patterns) are tried once while they stay alike. A bounded pass
+    after the search (at most parts x distinct sheets placement attempts)."""
+    if len(sheets) < 2:
+        return sheets
+    built: dict[int, Sheet] = {}
+    added: dict[int, list] = {}
+    failed: set = set()  # (content of a sheet, shape set) that did not fit
+
+    def content(k):
+        return tuple(sheets[k]) + tuple(added.get(k, ()))
+
+    last = sorted(sheets[-1], key=lambda e: (-lib.shapes[e[1]].area, e[0], e[2], e[3]))
+    for item, *_ in last:
+        sids = lib.item_shapes[item]
+        home = None
+        for k in range(len(sheets) - 2, -1, -1):
+            if stop():
+                return sheets
+            key = (content(k), sids)
+            if key in failed:
+                continue
+            sheet = built.get(k)
+            if sheet is None:
+                sheet = Sheet(lib, usable)
+                for _item, sid, px, py in sheets[k]:
+                    sheet = sheet.with_part(sid, px, py)
+            hit = place_one(sheet, sids, work, RULES[0])
+            if hit is None:
+                failed.add(key)
+                built[k] = sheet
+                continue
+            _, sid, px, py = hit
+            built[k] = sheet.with_part(sid, px, py)
+            added.setdefault(k, []).append((item, sid, px, py))
+            home = k
+            break
+        if home is None:
+            return sheets
+    return [list(s) + added.get(k, []) for k, s in enumerate(sheets[:-1])]
 
 
 def _batch(remaining: list[int]) -> list[int]:
@@ -425,14 +482,6 @@ def _first_layout(dec, orders, stage: _Budget, clock, progress_of, key):
     return best
 
 
-def _strip_search(lib, part_items, usable, orders, stage, rng, clock, progress_of):
-    open_dec = Decoder(lib, part_items, usable, 1, stage.work)
-    # "lowest first" rules would lay an open strip out in one long row: not as a start
-    orders = [(plan, rule) for plan, rule in orders if RULES[rule][0] <= 1.0]
-    best = _first_layout(open_dec, orders, stage, clock, progress_of, _used_x)
-    return _shrink(lib, part_items, usable, best, stage, rng, clock, progress_of)
-
-
 def _shrink(lib, part_items, usable, best, stage, rng, clock, progress_of):
     """Ask for ever shorter strips; see the module doc."""
     x0, y0, _, y1 = usable
@@ -456,44 +505,125 @@ def _shrink(lib, part_items, usable, best, stage, rng, clock, progress_of):
     return best
 
 
-def _sheet_search(lib, part_items, usable, lower, stage: _Budget, rng, clock, progress_of, compact=True):
+def _sheet_key(d: Decoded) -> tuple:
+    st = d.final
+    return (len(st.unplaced), len(st.sheets), st.sheets[-1].area if st.sheets else 0.0)
+
+
+def _sheet_search(lib, part_items, usable, lower, stage: _Budget, rng, clock, progress_of, compact=True, jobs=1):
+    """First layout, then the improvement searches; (placements, unplaced parts, sheet count)."""
+    dec = Decoder(lib, part_items, usable, len(part_items), stage.work)
+    first = _first_layout(dec, _initial_orders(lib, part_items), stage, clock, progress_of, _sheet_key)
+    return _improve(lib, "sheet", part_items, usable, lower, first, stage, rng, clock, compact, jobs)
+
+
+class _Deadline:
+    """The wall-clock ceiling inside one improvement search (any process)."""
+
+    def __init__(self, deadline: float):
+        self.deadline = deadline
+        self.fired = False
+
+    def stop(self) -> bool:
+        if not self.fired and time.monotonic() > self.deadline:
+            self.fired = True
+        return self.fired
+
+
+def _improve(lib, mode, part_items, usable, lower, first: Decoded, stage: _Budget, rng, clock: _StageClock,
+             compact, jobs):
+    """Run SEARCHES improvement searches from ``first``, each with an equal
+    share of what is left of the stage's budget and its own seed drawn from
+    ``rng``, in ``jobs`` processes; keep the best (the lowest search number on a
+    tie). Each search starts from the same copy of the shape library, so the
+    result does not depend on ``jobs``. Returns (placements, unplaced parts,
+    sheet count) of the best; the work of every search is charged to the stage."""
+    left = max(0, stage.units - stage.work.units)
+    st = first.final
+    fallback = (st.placements, st.unplaced, len(st.sheets))
+    if left <= 0 or stage.spent() or clock.stop():
+        return fallback
+    seeds = [rng.getrandbits(64) for _ in range(SEARCHES)]
+    deadline = min(clock.deadline, clock.clock.deadline)
+    frozen = pickle.dumps(lib, protocol=pickle.HIGHEST_PROTOCOL)
+    tasks = [(frozen, mode, part_items, usable, lower, first.plan, first.rule, left // SEARCHES, deadline, sd, compact)
+             for sd in seeds]
+    if jobs > 1:
+        from concurrent.futures import ProcessPoolExecutor
+
+        with ProcessPoolExecutor(max_workers=min(jobs, len(tasks))) as pool:
+            found = list(pool.map(_search_task, tasks))
+    else:
+        found = [_search_task(t) for t in tasks]
+    for *_, units, hit, fired in found:
+        stage.work.add(units)
+        stage.hit = stage.hit or hit
+        clock.fired = clock.fired or fired
+    stage.spent()
+    j = min(range(len(found)), key=lambda k: (found[k][0], k))
+    key, placements, unplaced, n_sheets = found[j][:4]
+    return placements, unplaced, n_sheets
+
+
+def _quiet(_msg: str):
+    return lambda: None
+
+
+def _search_task(args):
+    """One improvement search (module-level so that a process pool can run it)."""
+    frozen, mode, part_items, usable, lower, plan, rule, units, deadline, seed, compact = args
+    lib = pickle.loads(frozen)
+    work = Work()
+    lib.work = work
+    stage = _Budget(work, units)
+    clock = _Deadline(deadline)
+    rng = random.Random(seed)
+    if mode == "strip":
+        start = Decoder(lib, part_items, usable, 1, work).decode(plan, rule)
+        best = _shrink(lib, part_items, usable, start, stage, rng, clock, _quiet)
+        key: tuple = (len(best.final.unplaced), _used_x(best))
+    else:
+        start = Decoder(lib, part_items, usable, len(part_items), work).decode(plan, rule)
+        best, key = _sheet_improve(lib, part_items, usable, lower, start, stage, rng, clock, compact)
+    stage.spent()
+    st = best.final
+    return key, st.placements, st.unplaced, len(st.sheets), work.units, stage.hit, clock.fired
+
+
+def _sheet_improve(lib, part_items, usable, lower, best: Decoded, stage: _Budget, rng, clock, compact):
+    """Fewer sheets, then (``compact``) a longer remnant; the best and its key."""
     n = len(part_items)
     work = stage.work
     dec = Decoder(lib, part_items, usable, n, work)
-
-    def key(d: Decoded):
-        st = d.final
-        return (len(st.unplaced), len(st.sheets), st.sheets[-1].area if st.sheets else 0.0)
-
-    best = _first_layout(dec, _initial_orders(lib, part_items), stage, clock, progress_of, key)
     # fewer sheets: every part must fit on one sheet fewer
     while len(best.final.sheets) > lower and not stage.spent() and not clock.stop():
         fewer = Decoder(lib, part_items, usable, len(best.final.sheets) - 1, work)
         start = fewer.decode(best.plan, best.rule)
         found, cost = late_acceptance(fewer, start, lambda d: d.final.unplaced_area, rng=rng,
                                       budget_units=stage.units, stop=clock.stop, target=0.0,
-                                      stall_limit=max(200, 4 * n), on_step=progress_of("saving a sheet"))
+                                      stall_limit=max(200, 4 * n))
         if cost > 0.0:
             break
         best = found
+    width = usable[2] - usable[0]
+    area = width * (usable[3] - usable[1])
+    count = len(best.final.sheets)
+
+    def compact_cost(d: Decoded) -> float:
+        st = d.final
+        extra = len(st.sheets) - count
+        reach = (st.sheets[-1].x_max - usable[0]) / width if st.sheets else 1.0
+        return 10.0 * (max(0, extra) + len(st.unplaced)) + st.unplaced_area / area + reach
+
     # a longer remnant: the last sheet's parts as far left as they go
     if compact and not stage.spent() and not clock.stop():
-        count = len(best.final.sheets)
-        width = usable[2] - usable[0]
-        area = width * (usable[3] - usable[1])
-
-        def compact_cost(d: Decoded) -> float:
-            st = d.final
-            extra = len(st.sheets) - count
-            last = st.sheets[-1]
-            return 10.0 * max(0, extra) + st.unplaced_area / area + (last.x_max - usable[0]) / width
-
         found, _ = late_acceptance(dec, best, compact_cost, rng=rng, budget_units=stage.units, stop=clock.stop,
-                                   stall_limit=max(300, 4 * n), on_step=progress_of("lengthening the remnant"))
-        if key(found)[:2] <= key(best)[:2]:
+                                   stall_limit=max(300, 4 * n))
+        if _sheet_key(found)[:2] <= _sheet_key(best)[:2]:
             best = found
-    stage.spent()
-    return best
+    st = best.final
+    key = (len(st.unplaced), len(st.sheets), compact_cost(best) if compact else st.sheets[-1].area)
+    return best, key
 
 
 def _result(items, lib: ShapeLibrary, sheets, unplaced_items, sheet_size, margin, spacing, strip_length,
