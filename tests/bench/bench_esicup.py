@@ -21,6 +21,7 @@ from __future__ import annotations
 
 import argparse
 import csv
+import os
 import sys
 import time
 from pathlib import Path
@@ -28,8 +29,8 @@ from pathlib import Path
 ROOT = Path(__file__).resolve().parents[2]
 sys.path.insert(0, str(ROOT))
 
-from sheetgen.nesting import nest, verify  # noqa: E402
-from sheetgen.nesting.esicup import read_instance  # noqa: E402
+from sheetgen.nesting import nest, verify
+from sheetgen.nesting.esicup import read_instance
 
 ESICUP = ROOT / "tests" / "data" / "esicup"
 FILES = {"SHAPES0": "shapes/shapes0.xml", "SHAPES1": "shapes/shapes1.xml", "SWIM": "swim/swim.xml",
@@ -56,6 +57,7 @@ def main() -> None:
 
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--time", type=float, default=20.0, help="time limit per instance and seed, s")
+    ap.add_argument("--jobs", type=int, default=os.cpu_count() or 1, help="processes for the searches")
     ap.add_argument("--seeds", default="1,2,3", help="comma-separated seeds")
     ap.add_argument("--effort", type=float, default=None, help="work budget (default: from the time limit)")
     ap.add_argument("--only", default=",".join(FILES), help="comma-separated instance names")
@@ -73,6 +75,7 @@ def main() -> None:
         for seed in seeds:
             t0 = time.perf_counter()
             result = nest(inst.items, strip_width_mm=inst.strip_width, time_limit_s=args.time, effort=args.effort,
+                          jobs=args.jobs,
                           seed=seed)
             took = time.perf_counter() - t0
             verify(result, inst.items)

@@ -16,6 +16,7 @@ demo's time limit (5 s; without --effort the budget follows from it).
 from __future__ import annotations
 
 import argparse
+import os
 import sys
 import time
 from pathlib import Path
@@ -23,10 +24,10 @@ from pathlib import Path
 ROOT = Path(__file__).resolve().parents[2]
 sys.path.insert(0, str(ROOT))
 
-from sheetgen.kit import build_kit  # noqa: E402
-from sheetgen.nesting import nest, sheet_patterns, verify  # noqa: E402
-from sheetgen.production import kit_items  # noqa: E402
-from sheetgen.spec import load_spec  # noqa: E402
+from sheetgen.kit import build_kit
+from sheetgen.nesting import nest, sheet_patterns, verify
+from sheetgen.production import kit_items
+from sheetgen.spec import load_spec
 
 
 def main() -> None:
@@ -34,6 +35,7 @@ def main() -> None:
     ap.add_argument("--kits", default="1,5,20,50,200", help="comma-separated kit counts")
     ap.add_argument("--time", type=float, default=5.0, help="wall-clock ceiling of the search, s")
     ap.add_argument("--effort", type=float, default=None, help="work budget (default: from the time limit)")
+    ap.add_argument("--jobs", type=int, default=os.cpu_count() or 1, help="processes for the searches")
     ap.add_argument("--seed", type=int, default=1)
     ap.add_argument("--params", default=str(ROOT / "params" / "demo.toml"))
     args = ap.parse_args()
@@ -50,7 +52,7 @@ def main() -> None:
         parts = sum(it.qty for it in items)
         t0, c0 = time.perf_counter(), time.process_time()
         result = nest(items, sheet_mm=sheet, margin_mm=margin, spacing_mm=spacing, time_limit_s=args.time,
-                      effort=args.effort, seed=args.seed)
+                      effort=args.effort, jobs=args.jobs, seed=args.seed)
         wall, cpu = time.perf_counter() - t0, time.process_time() - c0
         verify(result, items)
         u = result.utilisation
