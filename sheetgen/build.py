@@ -43,8 +43,9 @@ def _plan(args):
 
 def run_build(spec, kits: int, progress=None, jobs: int | None = None) -> BuildResult:
     """Everything a build writes, computed. Sheets of one pattern share one
-    cut plan (planned once); ``jobs`` processes plan the distinct sheets
-    (default every core; the result does not depend on it)."""
+    cut plan (planned once); ``jobs`` processes run the layout searches and
+    plan the distinct sheets (default every core; the result does not depend
+    on it)."""
     import os
 
     from sheetgen.cutplan import settings_from_spec
@@ -62,9 +63,10 @@ def run_build(spec, kits: int, progress=None, jobs: int | None = None) -> BuildR
     drive = kit.drive
     items, sources = kit_items(kit, spec.laser.kerf_mm, kits)
     sheet_mm = (spec.sheet.width_mm, spec.sheet.height_mm)
+    jobs = max(1, os.cpu_count() or 1) if jobs is None else jobs
     result = nest(items, sheet_mm=sheet_mm, margin_mm=spec.sheet.margin_mm, spacing_mm=spec.nest.spacing_mm,
                   time_limit_s=spec.nest.time_limit_s, effort=spec.nest.effort or None, seed=spec.nest.seed,
-                  progress=progress)
+                  progress=progress, jobs=jobs)
     try:
         verify(result, items)
     except GeometryBug as exc:
@@ -72,7 +74,6 @@ def run_build(spec, kits: int, progress=None, jobs: int | None = None) -> BuildR
     settings = settings_from_spec(spec)
     placed = placed_sheets(result, items, sources)
     patterns = sheet_patterns(result)
-    jobs = max(1, os.cpu_count() or 1) if jobs is None else jobs
     plans = map_jobs(_plan, [(placed[g[0]].contours, settings, sheet_mm) for g in patterns], jobs)
     plan_of = {k: plan for g, plan in zip(patterns, plans) for k in g}
     runs = [SheetRun(sheet, plan_of[k], util) for k, (sheet, util) in enumerate(zip(placed, result.utilisation))]

@@ -446,13 +446,13 @@ def _cli(*args):
 
 def test_nest_command_same_seed_and_effort_same_bytes(tmp_path):
     # Source: the contract of --effort (same seed and effort, same bytes on any
-    # machine and load); the wall-clock ceiling is far away in both runs.
+    # machine and load, with any --jobs); the wall-clock ceiling is far away in both runs.
     from tests.conftest import DEMO
 
     outs = []
-    for k, limit in enumerate((900, 600)):
+    for k, (limit, jobs) in enumerate(((900, 1), (600, 2))):  # nor on the number of processes
         out = tmp_path / f"run{k}"
-        res = _cli("nest", DEMO, "--kits", 2, "--effort", 1.5, "--time-limit", limit, "--seed", 4, "--jobs", 1,
+        res = _cli("nest", DEMO, "--kits", 2, "--effort", 1.5, "--time-limit", limit, "--seed", 4, "--jobs", jobs,
                    "-o", out, "--json")
         assert res.exit_code == 0, res.output
         outs.append((out, json.loads(res.output)))

@@ -78,8 +78,8 @@ class Progress:
                    "or 1.8 per second of the time limit.")
 @click.option("--seed", type=int, default=None, help="Seed of the improvement search.")
 @click.option("--jobs", type=int, default=None, metavar="N",
-              help="Processes for planning and writing the sheets (default: every core). The layout does not "
-                   "depend on it.")
+              help="Processes for the layout searches and for writing the sheets (default: every core). The "
+                   "layout does not depend on it.")
 @click.option("-o", "--out", "out_dir", required=True, type=click.Path(file_okay=False))
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object on stdout.")
 @set_option
@@ -162,7 +162,7 @@ def command(params, kits, extras, sheet, strip_width, rotations, spacing, margin
     progress = Progress()
     try:
         result = nest(items, sheet_mm=sheet_mm, strip_width_mm=strip_width, margin_mm=margin, spacing_mm=spacing,
-                      time_limit_s=time_limit, effort=effort, seed=seed, progress=progress)
+                      time_limit_s=time_limit, effort=effort, seed=seed, progress=progress, jobs=jobs)
     finally:
         progress.close()
     try:
