@@ -68,6 +68,7 @@ WORK_PER_SECOND = 1_800_000  # fitted rate about 2.3 million; kept lower for a s
 EFFORT_UNITS = 1_000_000     # work units in one unit of effort
 EFFORT_PER_SECOND = WORK_PER_SECOND / EFFORT_UNITS
 FIRST_SHARE = 0.3            # of a batch's budget, at most, for the starting layouts beyond the first
+NON_LAST_SHARE = 4           # a batch that is repeated gets 1/NON_LAST_SHARE of what is left of the budget
 SEARCHES = 2                 # independent improvement searches per stage (run on --jobs processes)
 BATCH_PARTS = 440            # parts in one batch of a large run (about 20 demo kits)
 
@@ -336,7 +337,7 @@ def _sheet_run(lib, counts, usable, lower, work, budget, rng, clock, jobs):
         left = max(0, budget - work.units)
         last = total <= BATCH_PARTS
         batch = list(remaining) if last else _batch(remaining)
-        share = left if last else left // 2
+        share = left if last else left // NON_LAST_SHARE
         stage = _Budget(work, work.units + share)
         stages.append(stage)
         now = time.monotonic()
