@@ -87,8 +87,9 @@ def command(params, kits, extras, sheet, strip_width, rotations, spacing, margin
             jobs, out_dir, as_json, overrides):
     """Nest kits and extra parts onto sheets; write sheet-01.dxf, ... and SVG previews into OUT.
 
-    A run is refused (exit 2) before any work when its part count would need more
-    memory than the nester's ceiling; the message names the count and the limit.
+    Ceiling: a run above 200,000 parts, or whose part and vertex counts would
+    need more than 2 GB, is refused (exit 2) before any work; the message names
+    the count and the limit (about 7,000 demo kits fit).
     """
     from sheetgen.errors import GeometryBug
     from sheetgen.io.output import staged_dir
