@@ -31,14 +31,29 @@ class BuildResult:
     sheets: tuple[SheetRun, ...]
     items: tuple
     summary: dict
+    patterns: tuple[tuple[int, ...], ...] = ()  # sheet positions (0-based) cut from one layout
 
 
-def run_build(spec, kits: int, progress=None) -> BuildResult:
-    from sheetgen.cutplan import plan_sheet, settings_from_spec
+def _plan(args):
+    from sheetgen.cutplan import plan_sheet
+
+    contours, settings, sheet_mm = args
+    return plan_sheet(list(contours), settings, sheet_size_mm=sheet_mm)
+
+
+def run_build(spec, kits: int, progress=None, jobs: int | None = None) -> BuildResult:
+    """Everything a build writes, computed. Sheets of one pattern share one
+    cut plan (planned once); ``jobs`` processes run the layout searches and
+    plan the distinct sheets (default every core; the result does not depend
+    on it)."""
+    import os
+
+    from sheetgen.cutplan import settings_from_spec
     from sheetgen.errors import GeometryBug, ParameterError
+    from sheetgen.io.sheets import map_jobs
     from sheetgen.kit import build_kit
     from sheetgen.mechanics.check import balance_check
-    from sheetgen.nesting import nest, verify
+    from sheetgen.nesting import nest, sheet_patterns, verify
     from sheetgen.production import kit_items, placed_sheets
 
     if kits < 1:
@@ -48,19 +63,22 @@ def run_build(spec, kits: int, progress=None) -> BuildResult:
     drive = kit.drive
     items, sources = kit_items(kit, spec.laser.kerf_mm, kits)
     sheet_mm = (spec.sheet.width_mm, spec.sheet.height_mm)
+    jobs = max(1, os.cpu_count() or 1) if jobs is None else jobs
     result = nest(items, sheet_mm=sheet_mm, margin_mm=spec.sheet.margin_mm, spacing_mm=spec.nest.spacing_mm,
-                  time_limit_s=spec.nest.time_limit_s, seed=spec.nest.seed, progress=progress)
+                  time_limit_s=spec.nest.time_limit_s, effort=spec.nest.effort or None, seed=spec.nest.seed,
+                  progress=progress, jobs=jobs)
     try:
         verify(result, items)
     except GeometryBug as exc:
         raise GeometryBug(f"nested layout failed verification: {exc}") from None
     settings = settings_from_spec(spec)
-    runs = []
-    for sheet, util in zip(placed_sheets(result, items, sources), result.utilisation):
-        plan = plan_sheet(list(sheet.contours), settings, sheet_size_mm=sheet_mm)
-        runs.append(SheetRun(sheet, plan, util))
+    placed = placed_sheets(result, items, sources)
+    patterns = sheet_patterns(result)
+    plans = map_jobs(_plan, [(placed[g[0]].contours, settings, sheet_mm) for g in patterns], jobs)
+    plan_of = {k: plan for g, plan in zip(patterns, plans) for k in g}
+    runs = [SheetRun(sheet, plan_of[k], util) for k, (sheet, util) in enumerate(zip(placed, result.utilisation))]
     summary = _summary(spec, kit, kits, balance, drive, result, runs)
-    return BuildResult(spec, kit, kits, balance, drive, result, tuple(runs), tuple(items), summary)
+    return BuildResult(spec, kit, kits, balance, drive, result, tuple(runs), tuple(items), summary, patterns)
 
 
 def _r(v, nd=3):
@@ -69,8 +87,9 @@ def _r(v, nd=3):
 
 def _summary(spec, kit, kits, balance, drive, result, runs) -> dict:
     from sheetgen.io.sheets import sheet_name
-    from sheetgen.mechanics.materials import sheet_material
     from sheetgen.mechanics.massprops import part_mass_each_kg
+    from sheetgen.mechanics.materials import sheet_material
+    from sheetgen.production import patterns_json
 
     density = sheet_material(spec.sheet.material).density_kg_m3
     costs = [r.plan.cost for r in runs]
@@ -107,7 +126,10 @@ def _summary(spec, kit, kits, balance, drive, result, runs) -> dict:
         "thickness_mm": spec.sheet.thickness_mm,
         "kerf_mm": spec.laser.kerf_mm,
         "sheets": len(runs),
+        "lower_bound_sheets": result.lower_bound_sheets,
         "area_lower_bound_sheets": result.area_lower_bound_sheets,
+        "patterns": patterns_json(result),
+        "stopped_by": result.stopped_by,
         "parts": sum(len(r.sheet.polygons) for r in runs),
         "pierces": sum(r.plan.pierces for r in runs),
         "cut_length_mm": _r(sum(r.plan.cut_length_mm for r in runs), 1),

@@ -16,7 +16,7 @@ from sheetgen.errors import ParameterError
 from sheetgen.geometry.kerf import cut_outline
 from sheetgen.geometry.shapes import turn_point
 from sheetgen.io.dxf import Contour, circles_of, polygon_contours
-from sheetgen.nesting import NestItem, NestResult
+from sheetgen.nesting import NestItem, NestResult, sheet_patterns
 from sheetgen.part import LAYER_LABEL, Mark
 
 
@@ -83,9 +83,11 @@ def extra_items(parts, kerf_mm: float, rotations_deg: tuple[float, ...]):
 
 
 def placed_sheets(result: NestResult, items, sources) -> list[PlacedSheet]:
-    """Every sheet's contours and marks, parts in the nester's order."""
-    out = []
-    for k, sheet in enumerate(result.sheets):
+    """Every sheet's contours and marks, parts in the nester's order. Sheets of
+    one pattern (see :func:`sheetgen.nesting.sheet_patterns`) share them."""
+    out: list[PlacedSheet | None] = [None] * len(result.sheets)
+    for group in sheet_patterns(result):
+        sheet = result.sheets[group[0]]
         contours: list[Contour] = []
         marks: list[Mark] = []
         polys, labels = [], []
@@ -96,12 +98,25 @@ def placed_sheets(result: NestResult, items, sources) -> list[PlacedSheet]:
             marks.extend(m.moved(p.angle_deg, p.x_mm, p.y_mm) for m in src.marks)
             polys.append(p.polygon)
             labels.append(items[p.item].name)
-        out.append(PlacedSheet(k + 1, tuple(contours), tuple(marks), tuple(polys), tuple(labels)))
+        parts = (tuple(contours), tuple(marks), tuple(polys), tuple(labels))
+        for k in group:
+            out[k] = PlacedSheet(k + 1, *parts)
     return out
 
 
+def patterns_json(result: NestResult) -> list[dict]:
+    """The run as sheet patterns: sheet numbers (from 1) cut from each, and how many."""
+    return [{"sheets": [k + 1 for k in group], "count": len(group), "parts": len(result.sheets[group[0]])}
+            for group in sheet_patterns(result)]
+
+
 def nest_summary(result: NestResult) -> dict:
-    """The figures of a nesting run, as the JSON output names them."""
+    """The figures of a nesting run, as the JSON output names them.
+
+    ``lower_bound_sheets`` is the honest bound (see
+    :mod:`sheetgen.nesting.bound`); ``area_lower_bound_sheets`` is the plain
+    area ratio, which counts every window as usable and so is weaker.
+    ``stopped_by``: "effort", "time_limit" or "converged"."""
     return {
         "sheets": len(result.sheets),
         "sheet_size_mm": [round(v, 3) for v in result.sheet_size_mm],
@@ -110,7 +125,11 @@ def nest_summary(result: NestResult) -> dict:
         "parts_placed": result.parts_placed,
         "parts_unplaced": len(result.unplaced),
         "utilisation": [round(u, 4) for u in result.utilisation],
+        "lower_bound_sheets": result.lower_bound_sheets,
         "area_lower_bound_sheets": result.area_lower_bound_sheets,
+        "patterns": patterns_json(result),
+        "stopped_by": result.stopped_by,
+        "work_units": result.work_units,
         "strip_length_mm": None if result.strip_length_mm is None else round(result.strip_length_mm, 3),
         "remnant_mm": None if result.remnant_mm is None else [round(v, 3) for v in result.remnant_mm],
     }

@@ -93,7 +93,13 @@ SCHEMA: tuple[Key, ...] = (
     _k("laser.lead_in", "lead_in_mm", float, 0.0, "mm", "Lead-in length off the part edge (0: none).", 0, 10),
     # nest --------------------------------------------------------------
     _k("nest.spacing", "spacing_mm", float, 3.0, "mm", "Clear gap between the cut contours of neighbouring parts.", 0, 50),
-    _k("nest.time_limit", "time_limit_s", float, 10.0, "s", "Time the nester may spend improving a layout.", 0, 3600),
+    _k("nest.time_limit", "time_limit_s", float, 10.0, "s",
+       "Wall-clock ceiling on the nester's search; when it ends the search the layout depends on the machine.",
+       0, 3600),
+    _k("nest.effort", "effort", float, 0.0, "-",
+       "Work budget of the nester's search in millions of work units (about 0.5 s each on a small two-core "
+       "machine): same seed and effort, same layout on any machine. 0 takes 1.8 per second of nest.time_limit.",
+       0, 100000),
     _k("nest.seed", "seed", int, 1, "-", "Seed of the improvement search (same seed, same layout).", 0, 2**31 - 1),
     # joints ------------------------------------------------------------
     _k("joints.fit", "fit", str, "snug", "-", "Fit class of tab-and-slot joints.", choices=("press", "snug", "slip")),

@@ -16,6 +16,8 @@ from tests.conftest import DEMO
 from tests.dxfread import read_cut_contours
 
 KITS = 3
+# a fixed work budget and a far wall-clock ceiling: the same bytes on any machine and load
+FIXED_WORK = ("--set", "nest.effort=5", "--set", "nest.time_limit=600")
 
 
 def run(*args):
@@ -25,7 +27,7 @@ def run(*args):
 @pytest.fixture(scope="module")
 def out(tmp_path_factory):
     d = tmp_path_factory.mktemp("build") / "out"
-    res = run("build", DEMO, "--kits", KITS, "-o", d)
+    res = run("build", DEMO, "--kits", KITS, *FIXED_WORK, "-o", d)
     assert res.exit_code == 0, res.output
     return d
 
@@ -97,7 +99,7 @@ def test_preflight_passes_every_sheet(out, demo_spec):
 
 def test_two_builds_are_byte_identical(out, tmp_path):
     again = tmp_path / "again"
-    assert run("build", DEMO, "--kits", KITS, "-o", again).exit_code == 0
+    assert run("build", DEMO, "--kits", KITS, *FIXED_WORK, "-o", again).exit_code == 0
     files = sorted(p.relative_to(out) for p in out.rglob("*") if p.is_file())
     assert files == sorted(p.relative_to(again) for p in again.rglob("*") if p.is_file())
     for f in files:

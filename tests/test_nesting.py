@@ -7,11 +7,14 @@ Sources named beside each check. Geometric facts used:
   A (+) (-B) (same source, from memory); checked against shapely's own
   intersection test, an independent computation.
 * Strip and sheet lower bounds from total area (common practice).
+* The honest sheet bound is checked against hand counts written out beside each
+  case (arithmetic on the sizes, independent of the code).
 """
 
 from __future__ import annotations
 
 import dataclasses
+import json
 import math
 
 import numpy as np
@@ -23,7 +26,14 @@ from shapely import affinity
 from shapely.geometry import Point, Polygon, box
 
 from sheetgen.errors import GeometryBug, SheetgenError
-from sheetgen.nesting import NestItem, nest, verify
+from sheetgen.nesting import (
+    NestItem,
+    RunTooLarge,
+    lower_bound_sheets,
+    nest,
+    sheet_patterns,
+    verify,
+)
 from sheetgen.nesting.nfp import clearance_outline, no_fit_polygon
 
 TOL = 1e-6
@@ -154,6 +164,8 @@ def test_random_parts_are_nested_without_overlap(specs, margin, spacing, seed):
     verify(result, items)
     independent_check(result, items, margin, spacing)
     assert not result.unplaced
+    # a lower bound can never exceed a layout that exists (definition of a bound)
+    assert 1 <= result.lower_bound_sheets <= len(result.sheets)
 
 
 @settings(max_examples=12)
@@ -324,3 +336,162 @@ def test_verify_catches_a_polygon_that_does_not_match_its_transform(good):
     s[0] = dataclasses.replace(s[0], x_mm=s[0].x_mm + 0.5)
     with pytest.raises(GeometryBug, match="transform"):
         verify(_with_sheet(result, s), items)
+
+
+# ---------------------------------------------------------------- the honest lower bound (hand counts)
+
+def test_bound_counts_squares_that_cannot_share_a_sheet():
+    # Hand count: 60 mm squares on a 100 mm sheet: 60 + 60 > 100 along x and
+    # along y, so no two share a sheet: 3 squares need 3 sheets, although their
+    # area (10,800 mm2) fits in 2 sheets (10,000 mm2 each).
+    items = [NestItem("sq", box(0, 0, 60, 60), 3, (0.0, 90.0))]
+    assert lower_bound_sheets(items, (100, 100), 0, 0) == 3
+    result = nest(items, sheet_mm=(100, 100), time_limit_s=0.1)
+    assert len(result.sheets) == 3 and result.lower_bound_sheets == 3
+    assert result.area_lower_bound_sheets == 2
+
+
+def test_bound_counts_the_spacing_between_neighbours():
+    # Hand count, spacing 2 mm on a 100 x 100 sheet: four 49 mm squares fit
+    # (49 + 2 + 49 = 100) on one sheet; 49.1 mm squares do not pair up
+    # (49.1 + 2 + 49.1 = 100.2 > 100), so four of them need four sheets.
+    fit = [NestItem("sq", box(0, 0, 49, 49), 4, (0.0,))]
+    assert lower_bound_sheets(fit, (100, 100), 0, 2) == 1
+    assert len(nest(fit, sheet_mm=(100, 100), spacing_mm=2, time_limit_s=0.2).sheets) == 1
+    wide = [NestItem("sq", box(0, 0, 49.1, 49.1), 4, (0.0,))]
+    assert lower_bound_sheets(wide, (100, 100), 0, 2) == 4
+
+
+def test_bound_counts_a_window_only_for_the_parts_that_fit_it():
+    # Hand count: a 100 mm frame with a 90 mm window fills a 100 mm sheet. A
+    # 50 mm square fits the window; a 95 x 10 mm bar does not (95 > 90 both
+    # ways), and there is no room beside the frame: 2 sheets. The plain area
+    # ratio, (1,900 + 2,500 + 950) / 10,000, says 1.
+    items = [NestItem("frame", frame(100, 90), 1, (0.0,)), NestItem("sq", box(0, 0, 50, 50), 1, (0.0,)),
+             NestItem("bar", box(0, 0, 95, 10), 1, (0.0, 90.0))]
+    assert lower_bound_sheets(items, (100, 100), 0, 0) == 2
+    result = nest(items, sheet_mm=(100, 100), time_limit_s=0.2)
+    verify(result, items)
+    assert len(result.sheets) == 2 and result.lower_bound_sheets == 2 and result.area_lower_bound_sheets == 1
+
+
+def test_bound_takes_margins_into_account():
+    # Hand count: a 110 x 110 sheet with a 5 mm margin leaves 100 x 100; a
+    # 60 mm square and a 45 mm square fit side by side (60 + 45 <= 100): 1 sheet;
+    # with a 10 mm margin (90 x 90 usable) two 60 mm squares cannot share: 2.
+    items = [NestItem("a", box(0, 0, 60, 60), 1, (0.0,)), NestItem("b", box(0, 0, 45, 45), 1, (0.0,))]
+    assert lower_bound_sheets(items, (110, 110), 5, 0) == 1
+    two = [NestItem("a", box(0, 0, 60, 60), 2, (0.0,))]
+    assert lower_bound_sheets(two, (110, 110), 10, 0) == 2
+
+
+# ---------------------------------------------------------------- work budget, ceiling, patterns
+
+def test_what_ended_the_search_is_reported():
+    # Source: the contract of nest() (stopped_by is "effort", "time_limit" or "converged").
+    items = [NestItem("ell", Polygon([(0, 0), (30, 0), (30, 10), (10, 10), (10, 30), (0, 30)]), 6,
+                      (0.0, 90.0, 180.0, 270.0))]
+    assert nest(items, sheet_mm=(60, 50), effort=0.05, time_limit_s=600).stopped_by == "effort"
+    assert nest(items, sheet_mm=(60, 50), effort=1000, time_limit_s=0).stopped_by == "time_limit"
+    one = [NestItem("sq", box(0, 0, 10, 10), 1, (0.0,))]  # nothing to search: ends on its own
+    assert nest(one, sheet_mm=(60, 50), effort=1000, time_limit_s=600).stopped_by == "converged"
+
+
+def test_same_seed_and_effort_same_layout_whatever_the_time_limit():
+    # Source: the contract of the work budget: the layout depends on seed and
+    # effort only (the wall-clock ceiling is set far away in both runs).
+    items = [NestItem("ell", Polygon([(0, 0), (30, 0), (30, 10), (10, 10), (10, 30), (0, 30)]), 7,
+                      (0.0, 90.0, 180.0, 270.0)), NestItem("tri", Polygon([(0, 0), (25, 0), (0, 20)]), 5, (0.0, 180.0))]
+    a = nest(items, sheet_mm=(80, 60), spacing_mm=1, effort=0.4, time_limit_s=3000, seed=3)
+    b = nest(items, sheet_mm=(80, 60), spacing_mm=1, effort=0.4, time_limit_s=1000, seed=3)
+    key = lambda r: [[(p.item, p.copy, p.x_mm, p.y_mm, p.angle_deg) for p in s] for s in r.sheets]  # noqa: E731
+    assert key(a) == key(b) and a.work_units == b.work_units
+
+
+def test_run_above_the_ceiling_is_refused_before_any_work():
+    # Source: the contract (count and limit named). 10 million parts are far above it.
+    items = [NestItem("sq", box(0, 0, 5, 5), 10_000_000, (0.0,))]
+    with pytest.raises(RunTooLarge, match=r"10,000,000 parts.*limit"):
+        nest(items, sheet_mm=(100, 100))
+    with pytest.raises(RunTooLarge, match=r"GB of memory: the limit is 0\.0 GB"):
+        nest([NestItem("sq", box(0, 0, 5, 5), 100, (0.0,))], sheet_mm=(100, 100), memory_limit_bytes=1000)
+
+
+def test_large_run_is_cut_from_repeated_patterns(monkeypatch):
+    # Hand count: 10 mm squares, spacing 0, on a 25 x 25 sheet: 2 x 2 per sheet
+    # (3 x 10 > 25), so 40 squares need exactly 10 sheets, all alike; the area
+    # bound is ceil(40 x 100 / 625) = 7 (no square is over half the sheet).
+    from sheetgen.nesting import engine
+
+    monkeypatch.setattr(engine, "BATCH_PARTS", 8)
+    items = [NestItem("sq", box(0, 0, 10, 10), 20, (0.0,)), NestItem("sq2", box(0, 0, 10, 10), 20, (0.0,))]
+    result = nest(items, sheet_mm=(25, 25), effort=1, time_limit_s=600)
+    verify(result, items)
+    independent_check(result, items, 0, 0)
+    assert len(result.sheets) == 10 and result.lower_bound_sheets == 7
+    groups = sheet_patterns(result)
+    assert sum(len(g) for g in groups) == 10
+    assert max(len(g) for g in groups) >= 4  # a batch of 8 gives 2 sheets: the first is repeated
+
+
+# ---------------------------------------------------------------- the nest command
+
+def _cli(*args):
+    from click.testing import CliRunner
+
+    from sheetgen.cli import main
+
+    return CliRunner().invoke(main, [str(a) for a in args])
+
+
+def test_nest_command_same_seed_and_effort_same_bytes(tmp_path):
+    # Source: the contract of --effort (same seed and effort, same bytes on any
+    # machine and load, with any --jobs); the wall-clock ceiling is far away in both runs.
+    from tests.conftest import DEMO
+
+    outs = []
+    for k, (limit, jobs) in enumerate(((900, 1), (600, 2))):  # nor on the number of processes
+        out = tmp_path / f"run{k}"
+        res = _cli("nest", DEMO, "--kits", 2, "--effort", 1.5, "--time-limit", limit, "--seed", 4, "--jobs", jobs,
+                   "-o", out, "--json")
+        assert res.exit_code == 0, res.output
+        outs.append((out, json.loads(res.output)))
+    (a, ja), (b, jb) = outs
+    assert ja["stopped_by"] in ("effort", "converged") and ja["stopped_by"] == jb["stopped_by"]
+    assert ja["files"] == jb["files"] and ja["files"]
+    for name in ja["files"]:
+        assert (a / name).read_bytes() == (b / name).read_bytes()
+    assert ja["lower_bound_sheets"] <= ja["sheets"]
+    assert sum(p["count"] for p in ja["patterns"]) == ja["sheets"]
+    assert sorted(k for p in ja["patterns"] for k in p["sheets"]) == list(range(1, ja["sheets"] + 1))
+
+
+def test_nest_command_refuses_a_run_above_the_ceiling(tmp_path):
+    # Source: the contract (exit 2, one line naming the count and the limit, nothing written).
+    from tests.conftest import DEMO
+
+    out = tmp_path / "big"
+    res = _cli("nest", DEMO, "--kits", 100000, "-o", out)
+    assert res.exit_code == 2
+    assert "parts" in res.output and "limit" in res.output and "Traceback" not in res.output
+    assert not out.exists()
+
+
+def test_last_sheet_emptied_into_the_gaps_of_the_others():
+    # Hand count: a 20 mm square on a 25 mm sheet leaves a 5 mm strip along two
+    # sides; a 4 mm square fits there, so a second sheet holding only it goes.
+    from sheetgen.nesting.engine import _empty_last
+    from sheetgen.nesting.place import ShapeLibrary, Work
+
+    lib = ShapeLibrary([box(0, 0, 20, 20), box(0, 0, 4, 4)], [(0.0,), (0.0,)], 0.0, 1e-7, 1000.0)
+    usable = (0.0, 0.0, 25.0, 25.0)
+    big, small = lib.item_shapes[0][0], lib.item_shapes[1][0]
+    sheets = [[(0, big, 0, 0)], [(1, small, 0, 0)]]
+    out = _empty_last(lib, sheets, usable, Work(), lambda: False)
+    assert len(out) == 1 and sorted(e[0] for e in out[0]) == [0, 1]
+    x, y = out[0][1][2] / lib.scale, out[0][1][3] / lib.scale
+    assert x >= 20.0 - 1e-6 or y >= 20.0 - 1e-6  # beside the big square, not on it
+    # a part too big for any gap stays where it is
+    lib2 = ShapeLibrary([box(0, 0, 20, 20), box(0, 0, 6, 6)], [(0.0,), (0.0,)], 0.0, 1e-7, 1000.0)
+    sheets2 = [[(0, lib2.item_shapes[0][0], 0, 0)], [(1, lib2.item_shapes[1][0], 0, 0)]]
+    assert len(_empty_last(lib2, sheets2, usable, Work(), lambda: False)) == 2

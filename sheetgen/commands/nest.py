@@ -69,19 +69,39 @@ class Progress:
 @click.option("--spacing", type=float, default=None, help="Clear gap between cut contours, mm.")
 @click.option("--margin", type=float, default=None, help="Clear border at the sheet edge, mm.")
 @click.option("--kerf", type=float, default=None, help="Kerf, mm (default laser.kerf, or 0 without PARAMS).")
-@click.option("--time-limit", type=float, default=None, metavar="SECONDS", help="Time for improving the layout.")
+@click.option("--time-limit", type=float, default=None, metavar="SECONDS",
+              help="Wall-clock ceiling on the search stage (default nest.time_limit, or 10). When it ends the "
+                   "search, the layout depends on the machine's speed and load; the output says so.")
+@click.option("--effort", type=float, default=None, metavar="E",
+              help="Work budget of the search in millions of work units (about 0.5 s each on a small two-core "
+                   "machine); the same seed and effort give the same layout on any machine. Default nest.effort, "
+                   "or 1.8 per second of the time limit.")
 @click.option("--seed", type=int, default=None, help="Seed of the improvement search.")
+@click.option("--jobs", type=int, default=None, metavar="N",
+              help="Processes for the layout searches and for writing the sheets (default: every core). The "
+                   "layout does not depend on it.")
 @click.option("-o", "--out", "out_dir", required=True, type=click.Path(file_okay=False))
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object on stdout.")
 @set_option
-def command(params, kits, extras, sheet, strip_width, rotations, spacing, margin, kerf, time_limit, seed,
-            out_dir, as_json, overrides):
-    """Nest kits and extra parts onto sheets; write sheet-01.dxf, ... and SVG previews into OUT."""
+def command(params, kits, extras, sheet, strip_width, rotations, spacing, margin, kerf, time_limit, effort, seed,
+            jobs, out_dir, as_json, overrides):
+    """Nest kits and extra parts onto sheets; write sheet-01.dxf, ... and SVG previews into OUT.
+
+    Ceiling: a run above 200,000 parts, or whose part and vertex counts would
+    need more than 2 GB, is refused (exit 2) before any work; the message names
+    the count and the limit (about 7,000 demo kits fit).
+    """
     from sheetgen.errors import GeometryBug
     from sheetgen.io.output import staged_dir
     from sheetgen.io.sheets import write_sheets
-    from sheetgen.nesting import nest, verify
-    from sheetgen.production import extra_items, kit_items, nest_summary, parse_rotations, placed_sheets
+    from sheetgen.nesting import nest, sheet_patterns, verify
+    from sheetgen.production import (
+        extra_items,
+        kit_items,
+        nest_summary,
+        parse_rotations,
+        placed_sheets,
+    )
 
     start = time.perf_counter()
     angles = parse_rotations(rotations) if rotations is not None else None
@@ -95,6 +115,8 @@ def command(params, kits, extras, sheet, strip_width, rotations, spacing, margin
         spacing = spec.nest.spacing_mm if spacing is None else spacing
         margin = spec.sheet.margin_mm if margin is None else margin
         time_limit = spec.nest.time_limit_s if time_limit is None else time_limit
+        if effort is None and spec.nest.effort > 0:
+            effort = spec.nest.effort
         seed = spec.nest.seed if seed is None else seed
         if sheet is None and strip_width is None:
             sheet_mm = (spec.sheet.width_mm, spec.sheet.height_mm)
@@ -119,9 +141,11 @@ def command(params, kits, extras, sheet, strip_width, rotations, spacing, margin
     if strip_width is not None:
         sheet_mm = None
     for name, value, hi in (("--spacing", spacing, 100.0), ("--margin", margin, 500.0),
-                            ("--time-limit", time_limit, 3600.0)):
+                            ("--time-limit", time_limit, 3600.0),
+                            ("--effort", 0.0 if effort is None else effort, 100000.0)):
         if not (0 <= value <= hi):
             raise ParameterError(f"{name} {value:g}: must be from 0 to {hi:g}")
+    jobs = resolve_jobs(jobs)
     if extras:
         from sheetgen.io.dxf_read import read_dxf_parts
 
@@ -139,7 +163,7 @@ def command(params, kits, extras, sheet, strip_width, rotations, spacing, margin
     progress = Progress()
     try:
         result = nest(items, sheet_mm=sheet_mm, strip_width_mm=strip_width, margin_mm=margin, spacing_mm=spacing,
-                      time_limit_s=time_limit, seed=seed, progress=progress)
+                      time_limit_s=time_limit, effort=effort, seed=seed, progress=progress, jobs=jobs)
     finally:
         progress.close()
     try:
@@ -149,8 +173,12 @@ def command(params, kits, extras, sheet, strip_width, rotations, spacing, margin
     sheets = placed_sheets(result, items, sources)
     size = result.sheet_size_mm
     with staged_dir(out_dir) as tmp:
-        files = write_sheets(tmp, sheets, size, margin)
-    summary = nest_summary(result) | {"kerf_mm": kerf, "seed": seed, "files": files,
+        files = write_sheets(tmp, sheets, size, margin, patterns=sheet_patterns(result), jobs=jobs)
+    from sheetgen.nesting.engine import EFFORT_PER_SECOND
+
+    used_effort = effort if effort is not None else round(time_limit * EFFORT_PER_SECOND, 6)
+    summary = nest_summary(result) | {"kerf_mm": kerf, "seed": seed, "effort": used_effort, "time_limit_s": time_limit,
+                                      "files": files,
                                       "time_s": round(time.perf_counter() - start, 2)}
     if as_json:
         click.echo(json.dumps(summary))
@@ -158,11 +186,23 @@ def command(params, kits, extras, sheet, strip_width, rotations, spacing, margin
     mode = (f"strip {size[1]:g} mm wide, {result.strip_length_mm:.1f} mm long" if result.strip_length_mm is not None
             else f"{len(result.sheets)} sheet(s) of {size[0]:g} x {size[1]:g} mm")
     click.echo(f"{result.parts_placed} parts on {mode} "
-               f"(area lower bound {result.area_lower_bound_sheets}); "
+               f"(lower bound {result.lower_bound_sheets}, {len(summary['patterns'])} distinct pattern(s), "
+               f"search ended by {result.stopped_by.replace('_', ' ')}); "
                f"utilisation {', '.join(f'{u * 100:.1f} %' for u in result.utilisation)}")
     if result.unplaced:
         click.echo(f"{len(result.unplaced)} parts could not be placed", err=True)
     click.echo(f"written to {out_dir}: {', '.join(files)} ({summary['time_s']} s)")
+
+
+def resolve_jobs(jobs: int | None) -> int:
+    """``--jobs``: a whole number >= 1, default every core."""
+    import os
+
+    if jobs is None:
+        return max(1, os.cpu_count() or 1)
+    if jobs < 1:
+        raise ParameterError(f"--jobs {jobs}: must be a whole number >= 1")
+    return jobs
 
 
 def _check_kerf(kerf: float) -> None:

@@ -57,6 +57,33 @@ def _table(head, rows, num=()):
     return f"<table><thead><tr>{h}</tr></thead><tbody>{''.join(_row(r, num) for r in rows)}</tbody></table>"
 
 
+def _sheets(build) -> list[str]:
+    """The sheets as patterns: each distinct layout drawn once with the sheets cut from it."""
+    s = build.summary
+    groups = build.patterns or tuple((k,) for k in range(len(build.sheets)))
+    bound = s["lower_bound_sheets"]
+    out = ["<h2>Sheets</h2>",
+           f"<p>{s['sheets']} sheet{'s' if s['sheets'] != 1 else ''} from {len(groups)} distinct "
+           f"pattern{'s' if len(groups) != 1 else ''}; no layout can use fewer than {bound} "
+           f"(lower bound: part areas grown by half the spacing against the usable sheet, windows counted "
+           f"only as far as parts fit them, parts that cannot share a sheet counted)"
+           + (", so this run is at the bound." if s["sheets"] <= bound else
+              f": {s['sheets'] - bound} above it.")
+           + f" The layout search ended by {escape(s['stopped_by'].replace('_', ' '))}.</p>",
+           "<p><small>Drawn to scale; the dashed line is the sheet margin. Each sheet's DXF lists the "
+           "contours in cut order: holes and nested parts before the outlines around them. A pattern cut "
+           "several times has one file per physical sheet, all with the same content.</small></p>"]
+    for g in groups:
+        run = build.sheets[g[0]]
+        names = ", ".join(sheet_name(build.sheets[k].sheet.index) for k in g)
+        times = f"cut {len(g)} times ({names})" if len(g) > 1 else names
+        out.append(f'<div class="sheet"><b>{times}</b> — {len(run.sheet.polygons)} parts, utilisation '
+                   f"{run.utilisation * 100:.1f} %, {run.plan.pierces} pierces, {run.plan.cut_time_s / 60:.1f} min"
+                   " each" + sheet_svg(run.sheet, build.nest.sheet_size_mm, build.nest.margin_mm, fragment=True)
+                   + "</div>")
+    return out
+
+
 def render_report(build, assembly_svg: str | None = None) -> str:
     """The report page for a finished build (sheetgen.build.BuildResult)."""
     s = build.summary
@@ -77,7 +104,7 @@ def render_report(build, assembly_svg: str | None = None) -> str:
            f"{'All design checks pass' if ok else 'A design check fails: see the checks below before cutting'}</div>",
            '<div class="figures">',
            *(f'<div class="figure"><b>{v}</b><span>{k}</span></div>' for k, v in (
-               ("sheets (area bound " + str(s["area_lower_bound_sheets"]) + ")", s["sheets"]),
+               ("sheets (lower bound " + str(s["lower_bound_sheets"]) + ")", s["sheets"]),
                ("parts", s["parts"]),
                ("laser time", f"{minutes:.1f} min"),
                ("cut length", f"{s['cut_length_mm'] / 1000:.2f} m"),
@@ -88,14 +115,7 @@ def render_report(build, assembly_svg: str | None = None) -> str:
            )),
            "</div>"]
     out += _checks(build)
-    out += ["<h2>Sheets</h2>",
-            "<p><small>Drawn to scale; the dashed line is the sheet margin. Each sheet's DXF lists the "
-            "contours in cut order: holes and nested parts before the outlines around them.</small></p>"]
-    for run in build.sheets:
-        name = sheet_name(run.sheet.index)
-        out.append(f'<div class="sheet"><b>{name}</b> — {len(run.sheet.polygons)} parts, utilisation '
-                   f"{run.utilisation * 100:.1f} %, {run.plan.pierces} pierces, {run.plan.cut_time_s / 60:.1f} min"
-                   + sheet_svg(run.sheet, build.nest.sheet_size_mm, build.nest.margin_mm, fragment=True) + "</div>")
+    out += _sheets(build)
     out += _bom(build)
     out += _gears(build)
     out += _cut_table(build)

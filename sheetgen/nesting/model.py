@@ -43,7 +43,12 @@ class NestResult:
     length used, strip width). ``utilisation`` is, per sheet, the area of the
     placed cut outlines over the sheet (or used strip) area.
     ``area_lower_bound_sheets`` is ceil(total part area / usable sheet area),
-    the fewest sheets any layout could use (1 in strip mode).
+    a weak bound that counts every window as usable (1 in strip mode);
+    ``lower_bound_sheets`` is the honest one of
+    :func:`sheetgen.nesting.bound.lower_bound_sheets` (1 in strip mode).
+    ``stopped_by`` says what ended the search: "effort" (the work budget),
+    "time_limit" (the wall-clock ceiling) or "converged"; ``work_units`` is the
+    work done.
 
     ``remnant_mm`` is the usable remnant of the last sheet: the full-height
     rectangle (length along x, height along y) from the rightmost cut contour
@@ -61,7 +66,21 @@ class NestResult:
     utilisation: tuple[float, ...]
     area_lower_bound_sheets: int
     remnant_mm: tuple[float, float] | None
+    lower_bound_sheets: int = 1
+    stopped_by: str = "converged"
+    work_units: int = 0
 
     @property
     def parts_placed(self) -> int:
         return sum(len(s) for s in self.sheets)
+
+
+def sheet_patterns(result: NestResult) -> tuple[tuple[int, ...], ...]:
+    """Sheets cut from one program: groups of sheet indexes (0-based) whose
+    parts are the same items at the same angles and places, in the same order.
+    Groups are in the order of their first sheet."""
+    groups: dict[tuple, list[int]] = {}
+    for k, sheet in enumerate(result.sheets):
+        key = tuple((p.item, p.angle_deg, round(p.x_mm, 9), round(p.y_mm, 9)) for p in sheet)
+        groups.setdefault(key, []).append(k)
+    return tuple(tuple(g) for g in groups.values())

@@ -5,11 +5,16 @@ them) and raises :class:`~sheetgen.errors.GeometryBug` on the first of:
 
 * a part accounted for twice, or not at all (neither placed nor unplaced);
 * a placed polygon that is not the item's outline turned by its angle and
-  moved by its offset;
+  moved by its offset (vertex by vertex; the Hausdorff distance only when the
+  vertex counts differ);
 * a part outside the usable area (the sheet shrunk by the margin; in strip mode
   the strip from x = margin to the length used less the margin);
 * two parts overlapping by more than the tolerance, or (with a spacing) closer
   than the spacing less the tolerance.
+
+A sheet whose parts are the same items at the same places and angles as a sheet
+already checked (a repeated pattern) has its outlines checked against their
+transforms but not again for overlaps and gaps.
 
 Tolerance: ``TOL_MM`` = 1e-6 mm for layouts up to 1 m, scaled with the largest
 sheet or part size above that (1e-9 of it). The nester lets parts touch
@@ -32,6 +37,19 @@ def tolerance(result: NestResult, items) -> float:
     sizes = [max(it.polygon.bounds[2] - it.polygon.bounds[0], it.polygon.bounds[3] - it.polygon.bounds[1])
              for it in items]
     return TOL_MM * max([1.0, *(v / 1000.0 for v in result.sheet_size_mm), *(s / 1000.0 for s in sizes)])
+
+
+def _same_outline(expect, placed, tol: float) -> bool:
+    """True when ``placed`` is ``expect`` within ``tol``: vertex by vertex when
+    both have the same rings and vertex counts (the usual case: the nester moves
+    the outline without redrawing it), else by the Hausdorff distance."""
+    if (len(expect.interiors) == len(placed.interiors)
+            and shapely.get_num_coordinates(expect) == shapely.get_num_coordinates(placed)
+            and all(len(a.coords) == len(b.coords) for a, b in zip(expect.interiors, placed.interiors))):
+        a, b = shapely.get_coordinates(expect), shapely.get_coordinates(placed)
+        if float(np.max(np.abs(a - b))) <= tol:
+            return True
+    return shapely.hausdorff_distance(expect, placed) <= tol
 
 
 def verify(result: NestResult, items: list[NestItem] | tuple[NestItem, ...]) -> None:
@@ -60,15 +78,20 @@ def verify(result: NestResult, items: list[NestItem] | tuple[NestItem, ...]) -> 
     w, h = result.sheet_size_mm
     m = result.margin_mm
     x0, y0, x1, y1 = m - tol, m - tol, w - m + tol, h - m + tol
+    turned_cache: dict = {}
+    checked: set = set()
     for s, sheet in enumerate(result.sheets):
         if not sheet:
             raise GeometryBug(f"sheet {s + 1} is empty")
         polys = np.array([p.polygon for p in sheet], dtype=object)
         for p in sheet:
             name = items[p.item].name
-            expect = shapely.transform(rotate_ccw(items[p.item].polygon, p.angle_deg),
+            turned = turned_cache.get((p.item, p.angle_deg))
+            if turned is None:
+                turned = turned_cache[(p.item, p.angle_deg)] = rotate_ccw(items[p.item].polygon, p.angle_deg)
+            expect = shapely.transform(turned,
                                        lambda c: c + np.array([p.x_mm, p.y_mm]))
-            if shapely.hausdorff_distance(expect, p.polygon) > tol:
+            if not _same_outline(expect, p.polygon, tol):
                 raise GeometryBug(f"sheet {s + 1}: part {name!r} copy {p.copy}: polygon does not match its "
                                   f"transform (x={p.x_mm}, y={p.y_mm}, angle={p.angle_deg})")
             bx0, by0, bx1, by1 = p.polygon.bounds
@@ -76,6 +99,10 @@ def verify(result: NestResult, items: list[NestItem] | tuple[NestItem, ...]) -> 
                 raise GeometryBug(f"sheet {s + 1}: part {name!r} copy {p.copy} at ({bx0:.6f}, {by0:.6f})-"
                                   f"({bx1:.6f}, {by1:.6f}) leaves the usable area ({m:g} to {w - m:g}, "
                                   f"{m:g} to {h - m:g})")
+        key = tuple((p.item, p.angle_deg, p.x_mm, p.y_mm) for p in sheet)
+        if key in checked:  # the same parts at the same places as a sheet already checked: same verdict
+            continue
+        checked.add(key)
         tree = shapely.STRtree(polys)
         shrunk = shapely.buffer(polys, -tol, join_style="mitre")
         left, right = tree.query(shrunk, predicate="intersects")

@@ -1,39 +1,4 @@
-"""Cut plan for one sheet: the order the laser cuts the contours, where each
-one is pierced, and what the sheet costs in length, travel, time and money.
-
-Rules, in order of importance:
-
-1. **Inside first.** Every contour is cut before any contour that encloses it:
-   a part's holes before its outline, a part nested in a hole before the part
-   that holds it. A part whose outline is cut first can drop or shift in the
-   bed, and whatever is cut inside it afterwards lands in the wrong place
-   (common practice). Containment is computed with shapely.
-2. **Short travel.** Within that rule the head moves as little as possible
-   between contours: nearest neighbour from the laser's home (0, 0), then
-   improved by 2-opt (reverse a stretch of the sequence) and Or-opt (move one
-   to three contours elsewhere), both only where the inside-first rule allows,
-   alternated with choosing each contour's start point: any vertex of a ring,
-   any point of a circle. When that comes out longer than the nester's own
-   order, the same improvement also runs from the nester's order (made
-   inside-first when it is not) and the shorter result wins, so when the
-   nester's order already obeys rule 1 the plan is never longer.
-
-Travel is the straight-line rapid move from home to the first pierce and from
-the end of each contour to the next pierce. The move back home after the last
-contour is not counted. ``travel_unplanned_mm`` is the same figure for the
-nester's order, each ring cut from its first vertex and each circle from its
-point at angle 0 (where a DXF circle begins), without lead-ins.
-
-Lead-ins (off by default): a straight cut from a pierce point off the part's
-edge, on the waste side (outside an outer contour, inside a hole), to the
-contour's start point. Piercing leaves a blemish wider than the kerf; a lead-in
-keeps it off the finished edge (common practice). A lead-in never crosses or
-touches another contour; where the chosen start point cannot take one, the
-planner tries the next best start point and then half and a quarter of the
-length; a contour too small for any gets none (counted in ``CutPlan``).
-
-Pure: no files, no printing.
-"""
+"""Cut planning: the cut order and start points (inside first, short travel), and :func:`plan_sheet`."""
 
 from __future__ import annotations
 
@@ -44,204 +9,27 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from sheetgen.errors import ParameterError, SheetgenError
+from sheetgen.cutplan.containment import contour_polygon, enclosure_pairs
+from sheetgen.cutplan.leadins import _add_lead_ins
+from sheetgen.cutplan.settings import (
+    CIRCLE_CANDIDATES,
+    CIRCLE_FINE,
+    HOME_MM,
+    MAX_RING_CANDIDATES,
+    MAX_ROUNDS,
+    MAX_SWEEPS,
+    MIN_GAIN_MM,
+    OR_OPT_MAX_LEN,
+    ROUND_DIGITS,
+    CutPlan,
+    LaserSettings,
+    _circle_point,
+    _planned,
+    _round_pt,
+    path_travel_mm,
+)
+from sheetgen.errors import SheetgenError
 from sheetgen.io.dxf import Contour
-
-HOME_MM = (0.0, 0.0)
-CIRCLE_CANDIDATES = 64  # start points tried on a circle before refinement
-CIRCLE_FINE = 180  # samples on a circle before golden-section refinement
-CIRCLE_QUAD_SEGS = 64  # polygon approximation of a circle for containment
-MIN_GAIN_MM = 1e-9
-MAX_ROUNDS = 8  # order improvement <-> start point choice alternations
-MAX_SWEEPS = 200  # 2-opt / Or-opt sweeps per round (a bound, rarely reached)
-OR_OPT_MAX_LEN = 3
-LEAD_IN_FRACTIONS = (1.0, 0.5, 0.25)
-ROUND_DIGITS = 6
-
-
-@dataclass(frozen=True)
-class LaserSettings:
-    """What the laser needs to know to time and price a sheet.
-
-    ``rate_per_h`` (machine rate, currency per hour) and ``sheet_price``
-    (currency per sheet) are optional: None or 0 means not given. The cost is
-    None when neither is given.
-    """
-
-    cut_speed_mm_s: float
-    rapid_speed_mm_s: float
-    pierce_time_s: float
-    lead_in_mm: float = 0.0
-    rate_per_h: float | None = None
-    sheet_price: float | None = None
-
-    def __post_init__(self):
-        _check_number("laser.cut_speed", self.cut_speed_mm_s, "above 0 mm/s", lambda v: v > 0)
-        _check_number("laser.rapid_speed", self.rapid_speed_mm_s, "above 0 mm/s", lambda v: v > 0)
-        _check_number("laser.pierce_time", self.pierce_time_s, "at least 0 s", lambda v: v >= 0)
-        _check_number("laser.lead_in", self.lead_in_mm, "at least 0 mm", lambda v: v >= 0)
-        if self.rate_per_h is not None:
-            _check_number("laser.rate", self.rate_per_h, "at least 0 per hour", lambda v: v >= 0)
-        if self.sheet_price is not None:
-            _check_number("sheet.price", self.sheet_price, "at least 0", lambda v: v >= 0)
-
-
-def _check_number(key: str, value, allowed: str, ok) -> None:
-    if isinstance(value, bool) or not isinstance(value, (int, float)) or not math.isfinite(value) or not ok(value):
-        raise ParameterError(f"{key} = {value!r}: must be a finite number {allowed}")
-
-
-def settings_from_spec(spec) -> LaserSettings:
-    """Laser settings from a validated :class:`sheetgen.spec.Spec`."""
-    rate = spec.value("laser.rate")
-    price = spec.value("sheet.price")
-    return LaserSettings(
-        cut_speed_mm_s=spec.value("laser.cut_speed"),
-        rapid_speed_mm_s=spec.value("laser.rapid_speed"),
-        pierce_time_s=spec.value("laser.pierce_time"),
-        lead_in_mm=spec.value("laser.lead_in"),
-        rate_per_h=rate or None,
-        sheet_price=price or None,
-    )
-
-
-@dataclass(frozen=True)
-class PlannedContour(Contour):
-    """A contour as it is cut: a ring rotated so that ``points[0]`` is its
-    start, or a circle with its ``start`` point, and the pierce point
-    ``lead_in`` when it has a lead-in.
-
-    The beam pierces at ``lead_in`` (or at ``start`` when there is none), cuts
-    straight to ``start``, round the contour and back to ``start``.
-    """
-
-    start: tuple[float, float] = (0.0, 0.0)
-    lead_in: tuple[float, float] | None = None
-
-    @property
-    def pierce(self) -> tuple[float, float]:
-        return self.lead_in if self.lead_in is not None else self.start
-
-    @property
-    def end(self) -> tuple[float, float]:
-        return self.start
-
-    @property
-    def perimeter_mm(self) -> float:
-        return contour_perimeter_mm(self)
-
-    @property
-    def lead_in_length_mm(self) -> float:
-        if self.lead_in is None:
-            return 0.0
-        return math.dist(self.lead_in, self.start)
-
-
-@dataclass(frozen=True)
-class CutPlan:
-    """The cut plan of one sheet. ``order[k]`` is the index, in the list given to
-    :func:`plan_sheet`, of the k-th contour cut."""
-
-    contours: tuple[PlannedContour, ...]
-    order: tuple[int, ...]
-    pierces: int
-    cut_length_mm: float
-    travel_mm: float
-    travel_unplanned_mm: float
-    cut_time_s: float
-    cost: float | None
-    lead_ins: int = 0
-
-    @property
-    def travel_saved_mm(self) -> float:
-        return self.travel_unplanned_mm - self.travel_mm
-
-
-def contour_perimeter_mm(contour: Contour) -> float:
-    """Length of one closed contour (a ring's closing edge included)."""
-    if contour.is_circle:
-        return 2.0 * math.pi * contour.circle[2]
-    pts = contour.points
-    return sum(math.dist(pts[i], pts[(i + 1) % len(pts)]) for i in range(len(pts)))
-
-
-def path_travel_mm(contours: Sequence[PlannedContour], home: tuple[float, float] = HOME_MM) -> float:
-    """Rapid travel from ``home`` through the contours in the order given."""
-    total = 0.0
-    here = home
-    for c in contours:
-        total += math.dist(here, c.pierce)
-        here = c.end
-    return total
-
-
-def cut_plan_contours(plan: CutPlan) -> list[Contour]:
-    """The plan's contours in cut order, for the DXF writer (entity order on
-    layer CUT is the cut order). Each is a :class:`PlannedContour`: a
-    :class:`Contour` that also carries its start point and lead-in."""
-    return list(plan.contours)
-
-
-# ---------------------------------------------------------------------------
-# containment
-
-
-def _circle_polygon(circle):
-    from shapely.geometry import Point
-
-    cx, cy, r = circle
-    return Point(cx, cy).buffer(r, quad_segs=CIRCLE_QUAD_SEGS)
-
-
-def contour_polygon(contour: Contour):
-    """The region a contour bounds, as a shapely Polygon (valid)."""
-    from shapely.geometry import Polygon
-
-    if contour.is_circle:
-        return _circle_polygon(contour.circle)
-    poly = Polygon(contour.points)
-    if not poly.is_valid:
-        from shapely.validation import make_valid
-
-        fixed = make_valid(poly)
-        polys = [g for g in getattr(fixed, "geoms", [fixed]) if g.geom_type == "Polygon"]
-        poly = max(polys, key=lambda g: g.area) if polys else poly
-    return poly
-
-
-def enclosure_pairs(polygons: Sequence) -> list[tuple[int, int]]:
-    """All pairs (outer, inner) where region ``outer`` encloses region ``inner``.
-
-    Cut contours of a sheet do not cross, so one encloses another when it is
-    larger and holds (more than half of) it; the area test keeps the relation
-    strict and acyclic, and the half-overlap test tolerates the polygon
-    approximation of circles.
-    """
-    import shapely
-
-    if len(polygons) < 2:
-        return []
-    geoms = np.asarray(polygons, dtype=object)
-    areas = shapely.area(geoms)
-    tree = shapely.STRtree(geoms)
-    left, right = tree.query(geoms, predicate="intersects")
-    pairs = []
-    for a, b in zip(left.tolist(), right.tolist()):
-        if a == b or not areas[a] > areas[b]:
-            continue
-        ax0, ay0, ax1, ay1 = polygons[a].bounds
-        bx0, by0, bx1, by1 = polygons[b].bounds
-        tol = 1e-6 + 1e-3 * max(ax1 - ax0, ay1 - ay0)
-        if bx0 < ax0 - tol or by0 < ay0 - tol or bx1 > ax1 + tol or by1 > ay1 + tol:
-            continue
-        if polygons[a].intersection(polygons[b]).area > 0.5 * areas[b]:
-            pairs.append((a, b))
-    pairs.sort()
-    return pairs
-
-
-# ---------------------------------------------------------------------------
-# the planner
 
 
 @dataclass(frozen=True)
@@ -345,11 +133,6 @@ def _nearest_neighbour(problem: _Problem) -> tuple[list[int], np.ndarray]:
     return order, pts
 
 
-def _circle_point(circle, angle: float) -> np.ndarray:
-    """Point of a circle at ``angle`` (radians), rounded as it will be written:
-    the planner works on the written coordinates, so its figures are exact."""
-    cx, cy, r = circle
-    return np.round(np.array([cx + r * math.cos(angle), cy + r * math.sin(angle)]), ROUND_DIGITS) + 0.0
 
 
 def _circle_nearest(circle, p) -> np.ndarray:
@@ -511,8 +294,13 @@ class _Order:
 
 
 def _candidates(problem: _Problem, c: int, current: np.ndarray) -> np.ndarray:
-    if problem.rings[c] is not None:
-        return problem.rings[c]
+    ring = problem.rings[c]
+    if ring is not None:
+        if len(ring) <= MAX_RING_CANDIDATES:
+            return ring
+        # a long ring (a gear, a polygonised arc): every k-th vertex and the current start
+        step = -(-len(ring) // MAX_RING_CANDIDATES)
+        return np.vstack([current[None, :], ring[::step]])
     circle = problem.circles[c]
     ang = np.arange(CIRCLE_CANDIDATES) * (2 * math.pi / CIRCLE_CANDIDATES)
     cx, cy, r = circle
@@ -611,17 +399,8 @@ def _improve(order: list[int], pts: np.ndarray, problem: _Problem) -> tuple[list
     return order, pts, _path_length(_path_points(order, pts))
 
 
-def _round_pt(p) -> tuple[float, float]:
-    return (round(float(p[0]), ROUND_DIGITS) + 0.0, round(float(p[1]), ROUND_DIGITS) + 0.0)
 
 
-def _planned(contour: Contour, start, lead_in=None) -> PlannedContour:
-    if contour.is_circle:
-        return PlannedContour(circle=contour.circle, start=_round_pt(start), lead_in=lead_in)
-    pts = tuple(tuple(p) for p in contour.points)
-    k = min(range(len(pts)), key=lambda i: (pts[i][0] - start[0]) ** 2 + (pts[i][1] - start[1]) ** 2)
-    rotated = pts[k:] + pts[:k]
-    return PlannedContour(points=rotated, start=rotated[0], lead_in=lead_in)
 
 
 def plan_sheet(contours: Sequence[Contour], settings: LaserSettings,
@@ -694,111 +473,3 @@ def plan_sheet(contours: Sequence[Contour], settings: LaserSettings,
         cost=cost,
         lead_ins=lead_count,
     )
-
-
-# ---------------------------------------------------------------------------
-# lead-ins
-
-
-def _ring_lead_direction(points, k: int, poly, waste_outside: bool):
-    """Unit direction from vertex k into the waste: along the corner's bisector
-    (or the edge normal on a straight run)."""
-    from shapely.geometry import Point
-
-    v = np.asarray(points[k], dtype=float)
-    a = np.asarray(points[k - 1], dtype=float)
-    b = np.asarray(points[(k + 1) % len(points)], dtype=float)
-    u1, u2 = a - v, b - v
-    l1, l2 = np.hypot(*u1), np.hypot(*u2)
-    if l1 < 1e-12 or l2 < 1e-12:
-        return None
-    w = u1 / l1 + u2 / l2
-    if np.hypot(*w) < 1e-9:
-        w = np.array([-u2[1], u2[0]])
-    w = w / np.hypot(*w)
-    probe = 1e-4 * max(l1, l2, 1.0)
-    for d in (w, -w):
-        inside = poly.contains(Point(*(v + probe * d)))
-        if inside != waste_outside:
-            return d
-    return None
-
-
-def _lead_in_ok(start, tip, own_index, own_poly, is_circle, waste_outside, tree, boundaries, sheet_size_mm) -> bool:
-    from shapely.geometry import LineString, Point
-
-    start_a, tip_a = np.asarray(start), np.asarray(tip)
-    if sheet_size_mm is not None:
-        w, h = sheet_size_mm
-        if not (0 <= start[0] <= w and 0 <= start[1] <= h):
-            return False
-    if own_poly.contains(Point(*start)) == waste_outside:
-        return False
-    if not is_circle:  # a radial lead-in cannot cross its own circle
-        near_tip = tip_a + (start_a - tip_a) * 1e-3
-        seg_open = LineString([tuple(start_a), tuple(near_tip)])
-        if seg_open.intersects(boundaries[own_index]):
-            return False
-    seg = LineString([tuple(start_a), tuple(tip_a)])
-    for j in tree.query(seg, predicate="intersects").tolist():
-        if j != own_index:
-            return False
-    return True
-
-
-def _add_lead_ins(planned, order, contours, polygons, depth, length_mm, sheet_size_mm):
-    import shapely
-
-    boundaries = [p.exterior for p in polygons]
-    tree = shapely.STRtree(boundaries)
-    out = list(planned)
-    count = 0
-    home = np.asarray(HOME_MM, dtype=float)
-    for k, c in enumerate(order):
-        pc = out[k]
-        poly = polygons[c]
-        waste_outside = depth[c] % 2 == 0
-        prev_end = np.asarray(out[k - 1].end) if k > 0 else home
-        next_pt = np.asarray(out[k + 1].pierce) if k + 1 < len(out) else None
-
-        def score(p):
-            s = math.dist(prev_end, p)
-            return s + (math.dist(p, next_pt) if next_pt is not None else 0.0)
-
-        options = []  # (tip, unit direction), best first
-        if pc.is_circle:
-            cx, cy, r = pc.circle
-            angles = [math.atan2(pc.start[1] - cy, pc.start[0] - cx)]
-            extra = [i * 2 * math.pi / CIRCLE_CANDIDATES for i in range(CIRCLE_CANDIDATES)]
-            extra.sort(key=lambda t: score(_circle_point(pc.circle, t)))
-            for t in angles + extra:
-                d = np.array([math.cos(t), math.sin(t)])
-                options.append((np.array([cx, cy]) + r * d, d if waste_outside else -d))
-        else:
-            pts = tuple(tuple(p) for p in contours[c].points)
-            k0 = pts.index(pc.start)
-            rest = sorted((i for i in range(len(pts)) if i != k0), key=lambda i: (score(pts[i]), i))
-            for i in [k0] + rest:
-                d = _ring_lead_direction(pts, i, poly, waste_outside)
-                if d is not None:
-                    options.append((np.asarray(pts[i], dtype=float), d))
-        found = None
-        for frac in LEAD_IN_FRACTIONS:
-            ell = length_mm * frac
-            if pc.is_circle and not waste_outside:
-                ell = min(ell, pc.circle[2] * frac)
-            for tip, d in options:
-                start = _round_pt(tip + ell * d)
-                if math.dist(start, tip) < 1e-6:
-                    continue
-                if _lead_in_ok(start, tuple(tip), c, poly, pc.is_circle, waste_outside, tree, boundaries,
-                               sheet_size_mm):
-                    found = (tip, start)
-                    break
-            if found:
-                break
-        if found:
-            tip, start = found
-            out[k] = _planned(contours[c], tip, lead_in=start)
-            count += 1
-    return out, count
