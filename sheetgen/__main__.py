@@ -31,6 +31,12 @@ def _quiet_when_interrupted(kind, value, tb):
 sys.excepthook = _quiet_when_interrupted
 
 
+def _finished() -> None:
+    """The run is over and its exit code known: a signal from now on changes nothing."""
+    signal.signal(signal.SIGINT, signal.SIG_IGN)
+    signal.signal(signal.SIGTERM, signal.SIG_IGN)
+
+
 def run() -> None:
     signal.signal(signal.SIGINT, stop_on_signal)
     signal.signal(signal.SIGTERM, stop_on_signal)
@@ -39,11 +45,13 @@ def run() -> None:
 
         main()
     except SystemExit:
+        _finished()
         raise
     except BaseException as exc:
         signum = interrupt_in_chain(exc)
         if signum is None:
             raise
+        _finished()
         sys.stderr.write(interrupt_line(signum, exc.note if isinstance(exc, Interrupted) else "") + "\n")
         sys.exit(128 + signum)
 

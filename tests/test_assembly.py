@@ -461,7 +461,7 @@ def test_command_json_has_the_figures(demo_run, demo_kit):
     assert data["ok"] is True and data["interference"] == [] and data["floating_parts"] == []
     assert data["solid_count"] == len(data["solids"]) == _expected_solids(demo_kit)
     assert data["min_clearance_mm"] > 0 and len(data["cg_mm"]) == 3
-    assert sorted(p.name for p in out.iterdir()) == ["assembly.step", "assembly.svg"]
+    assert sorted(p.name for p in out.iterdir()) == [".sheetgen-output.json", "assembly.step", "assembly.svg"]
 
 
 def _bbox(s):

@@ -11,8 +11,11 @@ from __future__ import annotations
 import math
 
 import ezdxf
+import numpy as np
 import pytest
 import shapely
+from hypothesis import given
+from hypothesis import strategies as st
 from shapely.geometry import Point, Polygon, box
 
 from sheetgen.errors import InputFileError
@@ -245,3 +248,19 @@ def test_block_on_layer_zero_takes_the_insert_layer_for_both(tmp_path):
     report, parts = _both(path)
     assert report.contours == 1 == _contour_count(parts)
     assert parts[0].polygon.bounds == (0, 0, 8, 6)
+
+
+@given(st.lists(st.tuples(st.integers(0, 40), st.integers(0, 40)), min_size=1, max_size=60))
+def test_end_clustering_matches_a_brute_force_closure(cells):
+    # internal cross-check: the vectorised clustering against a plain transitive closure
+    from sheetgen.io.dxf_read import JOIN_TOL_MM, _cluster
+
+    pts = np.array(cells, dtype=float) * (JOIN_TOL_MM * 0.6)  # neighbours on the grid are within the tolerance
+    got = _cluster(pts, JOIN_TOL_MM)
+    n = len(pts)
+    near = np.hypot(*(pts[:, None, :] - pts[None, :, :]).transpose(2, 0, 1)) <= JOIN_TOL_MM
+    reach = near.copy()
+    for k in range(n):  # Floyd-Warshall closure
+        reach |= reach[:, k:k + 1] & reach[k:k + 1, :]
+    expected = np.array([int(np.nonzero(reach[i])[0].min()) for i in range(n)])
+    assert got.tolist() == expected.tolist()

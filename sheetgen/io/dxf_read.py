@@ -449,28 +449,27 @@ def closed_rings(geo: CutGeometry) -> Joined:
 
 def _cluster(points: np.ndarray, tol: float) -> np.ndarray:
     """For each point the index of its cluster's smallest member: points within
-    ``tol`` of each other (transitively) are one cluster (union-find over a grid)."""
-    parent = list(range(len(points)))
+    ``tol`` of each other (transitively) are one cluster. Pairs come from an
+    STRtree query; labels spread along the pairs until they settle."""
+    import shapely
 
-    def find(a: int) -> int:
-        while parent[a] != a:
-            parent[a] = parent[parent[a]]
-            a = parent[a]
-        return a
-
-    grid: dict[tuple[int, int], list[int]] = {}
-    cells = np.floor(points / tol).astype(np.int64)
-    for k in range(len(points)):
-        gx, gy = int(cells[k, 0]), int(cells[k, 1])
-        for dx in (-1, 0, 1):
-            for dy in (-1, 0, 1):
-                for other in grid.get((gx + dx, gy + dy), ()):
-                    if math.dist(points[other], points[k]) <= tol:
-                        ra, rb = find(k), find(other)
-                        if ra != rb:
-                            parent[max(ra, rb)] = min(ra, rb)
-        grid.setdefault((gx, gy), []).append(k)
-    return np.array([find(k) for k in range(len(points))], dtype=np.int64)
+    n = len(points)
+    labels = np.arange(n, dtype=np.int64)
+    if n < 2:
+        return labels
+    geoms = shapely.points(points)
+    left, right = shapely.STRtree(geoms).query(geoms, predicate="dwithin", distance=tol)
+    keep = left < right
+    left, right = left[keep], right[keep]
+    while len(left):
+        new = labels.copy()
+        np.minimum.at(new, left, labels[right])
+        np.minimum.at(new, right, labels[left])
+        new = new[new]  # follow each label to its own label
+        if np.array_equal(new, labels):
+            break
+        labels = new
+    return labels
 
 
 # ---------------------------------------------------------------------------
