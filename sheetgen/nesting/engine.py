@@ -36,6 +36,12 @@ otherwise "effort" when the budget ran out, or "converged" when the search
 ended on its own: it reached the lower bound or stopped improving). The first
 layout of each batch is always finished.
 
+Every core: after the first layout, :data:`SEARCHES` improvement searches with
+seeds drawn from the run's seed start from it, each with the stage's remaining
+budget, in ``jobs`` processes, and the best is kept (ties: the first search).
+Each starts from the same copy of the shape library, so the layout depends on
+the seed and the effort only, never on ``jobs``.
+
 Ceiling: before any work, :func:`estimate` gives the memory a run needs from
 its part and vertex counts; a run above ``memory_limit_bytes`` (default
 :data:`MEMORY_LIMIT_BYTES`) or above :data:`MAX_PARTS` parts is refused with
@@ -69,7 +75,7 @@ EFFORT_UNITS = 1_000_000     # work units in one unit of effort
 EFFORT_PER_SECOND = WORK_PER_SECOND / EFFORT_UNITS
 FIRST_SHARE = 0.3            # of a batch's budget, at most, for the starting layouts beyond the first
 NON_LAST_SHARE = 4           # a batch that is repeated gets 1/NON_LAST_SHARE of what is left of the budget
-SEARCHES = 2                 # independent improvement searches per stage (run on --jobs processes)
+SEARCHES = 2                 # independent improvement searches per stage, each with the full budget
 BATCH_PARTS = 440            # parts in one batch of a large run (about 20 demo kits)
 
 # The ceiling (see the module doc). The per-vertex and per-part figures are the
@@ -533,12 +539,13 @@ class _Deadline:
 
 def _improve(lib, mode, part_items, usable, lower, first: Decoded, stage: _Budget, rng, clock: _StageClock,
              compact, jobs):
-    """Run SEARCHES improvement searches from ``first``, each with an equal
-    share of what is left of the stage's budget and its own seed drawn from
-    ``rng``, in ``jobs`` processes; keep the best (the lowest search number on a
-    tie). Each search starts from the same copy of the shape library, so the
-    result does not depend on ``jobs``. Returns (placements, unplaced parts,
-    sheet count) of the best; the work of every search is charged to the stage."""
+    """Run SEARCHES improvement searches from ``first``, each with what is
+    left of the stage's budget and its own seed drawn from ``rng``, in ``jobs``
+    processes; keep the best (the lowest search number on a tie). Each search
+    starts from the same copy of the shape library, so the result does not
+    depend on ``jobs``. Returns (placements, unplaced parts, sheet count) of the
+    best. The budget is per search: with ``jobs`` >= SEARCHES a run takes the
+    wall time of one search, with one process about SEARCHES times as long."""
     left = max(0, stage.units - stage.work.units)
     st = first.final
     fallback = (st.placements, st.unplaced, len(st.sheets))
@@ -547,7 +554,7 @@ def _improve(lib, mode, part_items, usable, lower, first: Decoded, stage: _Budge
     seeds = [rng.getrandbits(64) for _ in range(SEARCHES)]
     deadline = min(clock.deadline, clock.clock.deadline)
     frozen = pickle.dumps(lib, protocol=pickle.HIGHEST_PROTOCOL)
-    tasks = [(frozen, mode, part_items, usable, lower, first.plan, first.rule, left // SEARCHES, deadline, sd, compact)
+    tasks = [(frozen, mode, part_items, usable, lower, first.plan, first.rule, left, deadline, sd, compact)
              for sd in seeds]
     if jobs > 1:
         from concurrent.futures import ProcessPoolExecutor
@@ -557,9 +564,9 @@ def _improve(lib, mode, part_items, usable, lower, first: Decoded, stage: _Budge
     else:
         found = [_search_task(t) for t in tasks]
     for *_, units, hit, fired in found:
-        stage.work.add(units)
         stage.hit = stage.hit or hit
         clock.fired = clock.fired or fired
+    stage.work.add(max(f[4] for f in found))  # the budget is per search: charge the longest
     stage.spent()
     j = min(range(len(found)), key=lambda k: (found[k][0], k))
     key, placements, unplaced, n_sheets = found[j][:4]
