@@ -34,7 +34,7 @@ from dataclasses import dataclass
 from typing import Callable
 
 from sheetgen.errors import ParameterError, SheetTooSmall
-from sheetgen.spec import AUTO, SCHEMA, SCHEMA_BY_PATH, Derived
+from sheetgen.spec import AUTO, SCHEMA, SCHEMA_BY_PATH, Derived, check_cross_rules
 
 # ISO 54 first-choice modules from 1 to 6 mm (from memory)
 ISO54_SERIES_I_MM = (1.0, 1.25, 1.5, 2.0, 2.5, 3.0, 4.0, 5.0, 6.0)
@@ -391,6 +391,7 @@ def _solve_core(spec) -> Solution:
     rounds = 0
     for rounds in range(1, MAX_ROUNDS + 1):
         if rounds > 1:
+            check_cross_rules(st.spec)  # pinned values against the derived ones, before weighing the kit
             st.load_Nm = _load_torque_Nm(st)
         for rule in RULES:
             if not any(st.is_auto(p) for p in rule.sets):
