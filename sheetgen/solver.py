@@ -280,7 +280,8 @@ def _motor_shaft_reach(st: _State) -> dict:
                 "drive.mount_gap": gap}
     need = t + MOUNT_GAP_MM + pinion_grip_mm(t, layers)
     if shaft < need - 1e-9:
-        raise NoLayout(f"too short to pass the {t:g} mm motor mount and grip the pinion stack "
+        raise NoLayout(f"motor.shaft_length = {shaft:g} mm is too short to pass the {t:g} mm motor mount and grip "
+                       f"the pinion stack "
                        f"({layers} layer(s) of {t:g} mm) by {pinion_grip_mm(t, layers):g} mm", "shaft", need_mm=need)
     extra = shaft - (t + MOUNT_GAP_MM + layers * t)  # past the pinion's inner face (negative: ends inside it)
     counts = range(1, n_max + 1) if st.is_auto("drive.wheel_spacers") else [s.drive.wheel_spacers]
@@ -304,18 +305,27 @@ def _axle_clears_travel(st: _State) -> dict:
 
     floor = grid_up(floor)
 
+    reach: list[float] = []
+
     def clearance(h):
-        return st.memo("sweep", (st.snapshot(("axle.height",)), h),
-                       lambda: frame_sweep(_build(s, h), travel_deg(s)).min_clearance_mm)
+        def run():
+            kit = _build(s, h)
+            if not reach:
+                reach.append(_turning_reach_mm(kit))
+            return frame_sweep(kit, travel_deg(s)).min_clearance_mm
+        return st.memo("sweep", (st.snapshot(("axle.height",)), h), run)
 
     prev = s.axle.height_mm
     h = grid_up(max(floor, prev)) if isinstance(prev, (int, float)) else floor
     passing, failing = None, None
+    seen: list[tuple[float, float]] = []  # (height, clearance) where the frame does not touch
     for _ in range(HEIGHT_STEPS):
         if h > MAX_HEIGHT_MM:
             raise NoLayout(f"the turning frame needs an axle height over {MAX_HEIGHT_MM:g} mm to clear the stand",
                            "height")
         c = clearance(h)
+        if c > 0:
+            seen.append((h, c))
         if c >= need - 1e-9:
             passing = h if passing is None else min(passing, h)
             if c - need <= HEIGHT_SURPLUS_MM or h <= floor:
@@ -324,6 +334,17 @@ def _axle_clears_travel(st: _State) -> dict:
         else:
             failing = h if failing is None else max(failing, h)
             nxt = grid_up(h + (need - c) / 0.7)  # ... and no slower than 0.7 x (the stretchers rise with it)
+            if c <= 0 and reach:
+                # touching: no distance to go by; the stand below the frame's reach (base, stretchers
+                # at most STRETCHER_MAX_MM tall) certainly clears, so bisect toward that height
+                nxt = max(nxt, grid_up(reach[0] + need + STRETCHER_MAX_MM + 1.0))
+        if len(seen) >= 2:
+            # secant through the two evaluations nearest the target clearance
+            (h1, c1), (h2, c2) = sorted(seen, key=lambda p: abs(p[1] - need))[:2]
+            if abs(c2 - c1) > 1e-6 and h1 != h2:
+                slope = (c2 - c1) / (h2 - h1)
+                if slope > 0:
+                    nxt = grid_up(h1 + (need + HEIGHT_SURPLUS_MM / 4 - c1) / slope)
         if passing is not None and failing is not None:
             if passing - failing <= HEIGHT_GRID_MM + 1e-9:
                 break
@@ -331,11 +352,28 @@ def _axle_clears_travel(st: _State) -> dict:
                 nxt = grid_up((passing + failing) / 2)
                 if nxt >= passing:
                     break
+        if nxt < floor:
+            nxt = floor
+        if passing is not None and nxt >= passing:
+            break
         h = nxt
     if passing is None:
         raise NoLayout(f"the turning frame does not clear the stand by frame.clearance = {need:g} mm at any "
                        f"axle height the search tried (up to {h:g} mm)", "height")
     return {"axle.height": passing}
+
+
+STRETCHER_MAX_MM = 40.0  # the stretchers' height cap in sheetgen/layout.py
+
+
+def _turning_reach_mm(kit) -> float:
+    """Farthest point of any turning part from the axle, seen along it."""
+    import numpy as np
+
+    from sheetgen.geometry.sweep import kit_silhouettes
+
+    pts = [np.asarray(sil.shape.exterior.coords) for sil in kit_silhouettes(kit) if sil.rotating]
+    return float(max(np.hypot(p[:, 0], p[:, 1]).max() for p in pts)) if pts else 0.0
 
 
 RULES: tuple[Rule, ...] = (
@@ -357,7 +395,8 @@ RULES: tuple[Rule, ...] = (
          "the spacer stack and mount gap that put the pinion on the shaft's full reach, the shaft end "
          "at least 1 mm from the support", _motor_shaft_reach),
     Rule("axle_clears_travel", ("axle.height",),
-         "the lowest height (0.5 mm grid) keeping frame.clearance through the travel and the motor off the base",
+         f"the lowest height, on a {HEIGHT_GRID_MM:g} mm grid, keeping frame.clearance (plus at most "
+         f"{HEIGHT_SURPLUS_MM:g} mm) through the travel and the motor off the base",
          _axle_clears_travel),
 )
 RULE_BY_NAME = {r.name: r for r in RULES}
@@ -461,66 +500,93 @@ def _bisect(spec, path: str, bad: float, good: float, step: float) -> float | No
     return good
 
 
-def _refusal(spec, exc) -> str:
+# inputs a designer may change, per kind of failure, in the order they are tried;
+# "up" or "down" is the direction that helps
+CANDIDATES = {
+    "motor": (("motor.stall_torque", "up"), ("site.wind_speed", "down"), ("panel.mass", "down"),
+              ("panel.width", "down"), ("panel.height", "down")),
+    "shaft": (("motor.shaft_length", "up"), ("sheet.thickness", "down")),
+    "module": (("sheet.thickness", "down"), ("sheet.height", "up"), ("sheet.width", "up")),
+    "sheet": (("panel.width", "down"), ("panel.height", "down"), ("sheet.height", "up"), ("sheet.width", "up")),
+}
+STEP = {"panel.width": 1.0, "panel.height": 1.0, "sheet.width": 5.0, "sheet.height": 5.0,
+        "site.wind_speed": 0.5, "sheet.thickness": 0.5, "panel.mass": 0.005}
+
+
+def _refusal(spec, exc, depth: int = 0) -> str:
+    """One line: what fails, the binding input, and the nearest value of it that builds."""
     why = str(exc)
-    if isinstance(exc, NoLayout) and exc.kind == "motor":
-        now = spec.motor.stall_torque_Nm
-        good = _grow_until_builds(spec, "motor.stall_torque", max(exc.figures["stall_needed_Nm"], now * 1.01))
-        if good is not None:
-            return (f"motor.stall_torque = {now:g}: {why}; the nearest stall torque that builds is "
-                    f"{good:.3g} N·m (or a lower site.wind_speed, or a lighter, better balanced panel)")
-        return f"motor.stall_torque = {now:g}: {why}; no motor within the allowed range carries it"
-    if isinstance(exc, NoLayout) and exc.kind == "shaft":
-        now = spec.motor.shaft_length_mm
-        good = _grow_until_builds(spec, "motor.shaft_length", exc.figures["need_mm"])
-        if good is not None:
-            return f"motor.shaft_length = {now:g}: {why}; the nearest shaft length that builds is {good:g} mm"
-        return f"motor.shaft_length = {now:g}: {why}"
-    # the frame or the stand is too large for the sheet, or cannot clear it: a smaller panel, or a larger sheet
-    sides = sorted(("panel.width", "panel.height"), key=lambda p: -spec.value(p))
-    for path in sides:
+    kind = exc.kind if isinstance(exc, NoLayout) else "sheet"
+    kind = kind if kind in CANDIDATES else "sheet"
+    hint = None
+    if kind == "motor":
+        hint = exc.figures["stall_needed_Nm"]
+    elif kind == "shaft":
+        hint = exc.figures["need_mm"]
+    if kind == "sheet" and spec.panel.width_mm > spec.panel.height_mm:
+        order = CANDIDATES[kind]
+    else:
+        order = sorted(CANDIDATES[kind], key=lambda c: c[0] != "panel.height") if kind == "sheet" \
+            else CANDIDATES[kind]
+    for path, way in order:
         now = spec.value(path)
-        good = _bisect(spec, path, now, SCHEMA_BY_PATH[path].lo, 1.0)
+        unit = SCHEMA_BY_PATH[path].unit
+        if way == "up":
+            good = _grow_until_builds(spec, path, max(hint if (hint and path == order[0][0]) else now * 1.01, now))
+        else:
+            lo = SCHEMA_BY_PATH[path].lo
+            good = _bisect(spec, path, now, lo, STEP[path]) if now > lo else None
         if good is not None and good != now:
-            return f"{path} = {now:g}: {why}; the largest {path} that builds is {good:g} mm (or larger sheet stock)"
-    for path in ("sheet.height", "sheet.width"):
-        now = spec.value(path)
-        good = _bisect(spec, path, now, SCHEMA_BY_PATH[path].hi, 5.0)
-        if good is not None and good != now:
-            return f"{path} = {now:g}: {why}; the smallest {path} that builds is {good:g} mm (or a smaller panel)"
-    # no one input is enough: the panel scaled down as it is shaped
+            word = "the highest" if way == "down" else "the least"
+            head = why if why.startswith(f"{path} = ") else f"{path} = {now:g}: {why}"
+            return f"{head}; {word} {path} that builds is {good:g} {unit}"
+    if kind == "sheet":
+        shape = _panel_scaled(spec, why)
+        if shape:
+            return shape
+    if hint is not None and depth == 0:
+        # no one input is enough: the first one's own need, then what binds next
+        path = order[0][0]
+        fixed = with_values(spec, {path: SCHEMA_BY_PATH[path].kind(_nice_up(hint))})
+        try:
+            _solve_core(fixed)
+        except (NoLayout, SheetTooSmall) as nxt:
+            return (f"{path} = {spec.value(path):g}: {why}; with {path} = {_nice_up(hint):g}, then: "
+                    + _refusal(fixed, nxt, depth + 1))
+    return why
+
+
+def _panel_scaled(spec, why: str) -> str | None:
+    """The panel scaled down as it is shaped, for when no one input is enough."""
     w, h = spec.panel.width_mm, spec.panel.height_mm
     lo = max(SCHEMA_BY_PATH["panel.width"].lo / w, SCHEMA_BY_PATH["panel.height"].lo / h)
 
     def scaled(f):
         return with_values(spec, {"panel.width": math.floor(w * f), "panel.height": math.floor(h * f)})
 
-    if builds(scaled(lo)):
-        good, bad = lo, 1.0
-        while bad - good > 1.0 / max(w, h):
-            mid = (good + bad) / 2
-            good, bad = (mid, bad) if builds(scaled(mid)) else (good, mid)
-        return (f"panel.width x panel.height = {w:g} x {h:g}: {why}; the largest panel of this shape that builds "
-                f"is {math.floor(w * good):g} x {math.floor(h * good):g} mm (or larger sheet stock)")
-    return why
+    if lo >= 1 or not builds(scaled(lo)):
+        return None
+    good, bad = lo, 1.0
+    while bad - good > 1.0 / max(w, h):
+        mid = (good + bad) / 2
+        good, bad = (mid, bad) if builds(scaled(mid)) else (good, mid)
+    return (f"panel.width x panel.height = {w:g} x {h:g}: {why}; the largest panel of this shape that builds "
+            f"is {math.floor(w * good):g} x {math.floor(h * good):g} mm (or larger sheet stock)")
 
 
 def _grow_until_builds(spec, path: str, first: float) -> float | None:
-    """The least value from ``first`` upward that builds: steps of 25 % until one
-    does, then bisection against the step below it to 1 %."""
+    """The least value from ``first`` upward that builds: doubling until one
+    does, then bisection against the value below it to 2 %."""
     k = SCHEMA_BY_PATH[path]
-    v = max(first, k.lo)
+    v = min(max(first, k.lo), k.hi)
     below = spec.value(path)
     while not _try(spec, path, _nice_up(v)):
+        if v >= k.hi:
+            return None
         below = v
-        v *= 1.25
-        if v > k.hi:
-            if below >= k.hi or not _try(spec, path, k.hi):
-                return None
-            v = k.hi
-            break
+        v = min(v * 2, k.hi)
     v = _nice_up(v)
-    while v - below > 0.01 * v:
+    while v - below > 0.02 * v:
         mid = _nice_up((v + below) / 2)
         if mid >= v:
             break
