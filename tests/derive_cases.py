@@ -61,18 +61,23 @@ class Outcome:
     kit: object = None
 
 
-REFUSAL = re.compile(r"^(?P<key>[a-z_]+\.[a-z_]+)(?: x (?P<key2>[a-z_]+\.[a-z_]+))? = [^:]+: .*"
-                     r"(?:that builds is|so at most) (?P<val>[-0-9.e]+)(?: x (?P<val2>[-0-9.e]+))?")
+NUM = r"(-?[0-9]+(?:\.[0-9]+)?(?:e-?[0-9]+)?)"
+BUILDS = re.compile(r"([a-z_]+\.[a-z_]+) that builds is " + NUM)
+THEN = re.compile(r"with ([a-z_]+\.[a-z_]+) = " + NUM + ", then")
+SHAPE = re.compile(r"panel of this shape that builds is " + NUM + " x " + NUM)
+AT_MOST = re.compile(r"^([a-z_]+\.[a-z_]+) = [^:]+: must be at most .*so at most " + NUM)
 
 
 def suggestion(message: str) -> list[str]:
     """The overrides a refusal says would build, read from its one line."""
-    m = REFUSAL.match(message)
-    if not m:
-        return []
-    out = [f"{m['key']}={m['val']}"]
-    if m["key2"]:
-        out.append(f"{m['key2']}={m['val2']}")
+    out = [f"{k}={v}" for k, v in THEN.findall(message)]
+    out += [f"{k}={v}" for k, v in BUILDS.findall(message)]
+    m = SHAPE.search(message)
+    if m:
+        out += [f"panel.width={m[1]}", f"panel.height={m[2]}"]
+    m = AT_MOST.match(message)
+    if m:
+        out.append(f"{m[1]}={m[2]}")
     return out
 
 
