@@ -97,6 +97,7 @@ class _State:
         self.spec = spec
         self.auto = auto
         self.load_Nm: float | None = None
+        self.module_cap_mm: float | None = None  # set when the wheel's limit binds the motor
         self._memo: dict = {}
 
     def is_auto(self, path: str) -> bool:
@@ -180,7 +181,13 @@ def _teeth_carry_load(st: _State) -> dict:
         return {"drive.module": d.module_mm, "drive.layers": d.layers}
     t = s.sheet.thickness_mm
     m0 = module_floor_mm(t)
-    modules = [m for m in ISO54_SERIES_I_MM if m >= m0] if st.is_auto("drive.module") else [d.module_mm]
+    if not st.is_auto("drive.module"):
+        modules = [d.module_mm]
+    elif st.module_cap_mm is not None:
+        # a finer module lets the wheel carry more teeth on the sheet, for a motor that needs the ratio
+        modules = [m for m in ISO54_SERIES_I_MM if MIN_MODULE_MM <= m <= st.module_cap_mm]
+    else:
+        modules = [m for m in ISO54_SERIES_I_MM if m >= m0]
     layer_counts = list(range(1, 5)) if st.is_auto("drive.layers") else [d.layers]
     strength = sheet_material(s.sheet.material).bending_strength_MPa
     ratio = d.wheel_teeth / d.pinion_teeth
@@ -192,7 +199,7 @@ def _teeth_carry_load(st: _State) -> dict:
                                       s.check.tooth_safety, s.motor.stall_torque_Nm)
             if fig.stress_MPa <= fig.allowable_MPa:
                 return {"drive.module": m, "drive.layers": n}
-            if m <= 2 * m0 and (best is None or fig.stress_MPa < best[0]):
+            if m <= 2 * max(m0, modules[0]) and (best is None or fig.stress_MPa < best[0]):
                 best = (fig.stress_MPa, m, n)
     # none carries the load: the least stressed; the tooth check's verdict says it fails
     return {"drive.module": best[1], "drive.layers": best[2]}
@@ -258,6 +265,14 @@ def _wheel_for_torque_margin(st: _State) -> dict:
     per_tooth = usable * d.efficiency / d.pinion_teeth  # axle torque on hand per wheel tooth
     need = math.ceil(s.check.torque_margin * load / per_tooth - 1e-9)
     z = min(max(need, lo), hi)
+    if need > hi and st.is_auto("drive.module") and d.module_mm > MIN_MODULE_MM:
+        short = min(s.sheet.width_mm, s.sheet.height_mm) - 2 * s.sheet.margin_mm
+        fits = WHEEL_SHEET_SHARE * short / (need + 2 + 2 * d.wheel_shift)  # the module that would take `need` teeth
+        finer = [m for m in ISO54_SERIES_I_MM if MIN_MODULE_MM <= m < d.module_mm and m <= fits] or [MIN_MODULE_MM]
+        cap = finer[-1]
+        if cap < d.module_mm and (st.module_cap_mm is None or cap < st.module_cap_mm):
+            st.module_cap_mm = cap
+            return {"drive.wheel_teeth": z}  # the next round tries the finer module
     if hi * per_tooth < load:
         raise NoLayout(
             f"the motor cannot turn the frame at any ratio module {d.module_mm:g} mm allows "
@@ -381,8 +396,9 @@ RULES: tuple[Rule, ...] = (
          f"at least {BORDER_MIN_MM:g} mm, two sheet thicknesses, the bolt hole plus "
          f"{BORDER_BOLT_MATERIAL_MM:g} mm each side, and sheet.thickness + 3 mm less the ledge", _border),
     Rule("teeth_carry_load", ("drive.module", "drive.layers"),
-         "the smallest ISO 54 module from max(1 mm, half the sheet) and the fewest layers whose Lewis tooth "
-         "stress under the load stays within the tooth check's allowable", _teeth_carry_load),
+         "the smallest ISO 54 module from max(1 mm, half the sheet) (finer, down to 1 mm, when the motor needs "
+         "a ratio the wheel cannot reach) and the fewest layers whose Lewis tooth stress under the load stays "
+         "within the tooth check's allowable", _teeth_carry_load),
     Rule("pinion_fits_shaft", ("drive.pinion_teeth",),
          f"the fewest teeth (from {MIN_PINION_TEETH}) whose root circle leaves the gear web round the motor shaft",
          _pinion_fits_shaft),

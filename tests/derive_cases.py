@@ -19,7 +19,7 @@ MATERIALS = ("mdf", "birch_plywood", "cast_acrylic")
 # the demo's own motor is in params/demo.toml; a stronger one (invented figures)
 STRONG_MOTOR = ["motor.body_width=37", "motor.body_height=37", "motor.body_length=60", "motor.shaft_diameter=6",
                 "motor.shaft_flat=5.4", "motor.shaft_length=18", "motor.screw_spacing=28", "motor.screw_diameter=3.2",
-                "motor.boss_diameter=12", "motor.mass=0.3", "motor.stall_torque=4", "motor.no_load_speed=8",
+                "motor.boss_diameter=12", "motor.mass=0.45", "motor.stall_torque=12", "motor.no_load_speed=5",
                 "motor.voltage=12", "drive.pulse_capacitance=0", "drive.pulse_voltage=0"]
 # a large laser bed, so the whole panel range can fit (a scenario choice)
 SHEET = ["sheet.width=1200", "sheet.height=900"]
