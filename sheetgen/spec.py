@@ -278,6 +278,8 @@ def _coerce(key: Key, value: Any, where: str):
             raise ParameterError(f"{where}{key.path} = {value!r}: must be {key.allowed()}")
         return value
     if isinstance(value, bool) or not isinstance(value, (int, float)):
+        if key.derived:
+            raise ParameterError(f'{where}{key.path} = {value!r}: must be "auto" or a number {key._allowed()}')
         raise ParameterError(f"{where}{key.path} = {value!r}: must be a number {key.allowed()}")
     if key.kind is int:
         if isinstance(value, float) and not value.is_integer():
