@@ -185,7 +185,7 @@ def _teeth_carry_load(st: _State) -> dict:
         modules = [d.module_mm]
     elif st.module_cap_mm is not None:
         # a finer module lets the wheel carry more teeth on the sheet, for a motor that needs the ratio
-        modules = [m for m in ISO54_SERIES_I_MM if MIN_MODULE_MM <= m <= st.module_cap_mm]
+        modules = [m for m in reversed(ISO54_SERIES_I_MM) if MIN_MODULE_MM <= m <= st.module_cap_mm]
     else:
         modules = [m for m in ISO54_SERIES_I_MM if m >= m0]
     layer_counts = list(range(1, 5)) if st.is_auto("drive.layers") else [d.layers]
@@ -199,7 +199,7 @@ def _teeth_carry_load(st: _State) -> dict:
                                       s.check.tooth_safety, s.motor.stall_torque_Nm)
             if fig.stress_MPa <= fig.allowable_MPa:
                 return {"drive.module": m, "drive.layers": n}
-            if m <= 2 * max(m0, modules[0]) and (best is None or fig.stress_MPa < best[0]):
+            if m <= 2 * max(m0, min(modules)) and (best is None or fig.stress_MPa < best[0]):
                 best = (fig.stress_MPa, m, n)
     # none carries the load: the least stressed; the tooth check's verdict says it fails
     return {"drive.module": best[1], "drive.layers": best[2]}
@@ -396,8 +396,8 @@ RULES: tuple[Rule, ...] = (
          f"at least {BORDER_MIN_MM:g} mm, two sheet thicknesses, the bolt hole plus "
          f"{BORDER_BOLT_MATERIAL_MM:g} mm each side, and sheet.thickness + 3 mm less the ledge", _border),
     Rule("teeth_carry_load", ("drive.module", "drive.layers"),
-         "the smallest ISO 54 module from max(1 mm, half the sheet) (finer, down to 1 mm, when the motor needs "
-         "a ratio the wheel cannot reach) and the fewest layers whose Lewis tooth stress under the load stays "
+         "the smallest ISO 54 module from max(1 mm, half the sheet) (the largest finer one, down to 1 mm, when "
+         "the motor needs a ratio the wheel cannot reach) and the fewest layers whose Lewis tooth stress under the load stays "
          "within the tooth check's allowable", _teeth_carry_load),
     Rule("pinion_fits_shaft", ("drive.pinion_teeth",),
          f"the fewest teeth (from {MIN_PINION_TEETH}) whose root circle leaves the gear web round the motor shaft",
