@@ -179,6 +179,10 @@ def _teeth_carry_load(st: _State) -> dict:
     load = st.load_Nm
     if load is None:  # first round: no kit yet to weigh
         return {"drive.module": d.module_mm, "drive.layers": d.layers}
+    if d.pinion_teeth < MIN_PINION_TEETH:
+        raise ParameterError(
+            f"drive.pinion_teeth = {d.pinion_teeth}: the tooth check's Lewis form factor table (Shigley table "
+            f"14-2) starts at {MIN_PINION_TEETH} teeth; must be from {MIN_PINION_TEETH} to 200")
     t = s.sheet.thickness_mm
     m0 = module_floor_mm(t)
     if not st.is_auto("drive.module"):

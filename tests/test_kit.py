@@ -83,7 +83,7 @@ def test_axle_too_low_is_refused_with_the_least_height():
 
 def test_part_too_large_for_the_sheet_names_part_sizes_and_what_builds():
     with pytest.raises(ParameterError, match=r"part base \(.* mm\) does not fit the usable sheet 190 x 140 mm.*"
-                                             r"the (largest|smallest) .* that builds is"):
+                                             r"the (largest|smallest|highest|least) .* that builds is"):
         load_spec(DEMO, ["sheet.width=200", "sheet.height=150"])
 
 
