@@ -131,8 +131,11 @@ def test_a_weak_motor_gets_the_most_teeth_and_a_failing_verdict():
     z_max = math.floor(0.5 * 390 / 1.5 - 2)
     # a stall torque that gives margin 1.1 at z_max
     stall = 1.1 * load * 12 / (0.85 * z_max * usable_fraction)
-    spec = load_spec(DEMO, [f"motor.stall_torque={stall:.6g}"])
+    # (module pinned: at "auto" the solver would take a finer module for more teeth)
+    spec = load_spec(DEMO, [f"motor.stall_torque={stall:.6g}", "drive.module=1.5"])
     assert spec.drive.wheel_teeth == z_max
+    finer = load_spec(DEMO, [f"motor.stall_torque={stall:.6g}"])
+    assert finer.drive.module_mm < 1.5 and balance_check(build_kit(finer), finer).drive.torque_margin >= 1.25
     report = balance_check(build_kit(spec), spec)
     torque = next(c for c in report.checks if c.name == "motor torque")
     assert not torque.passed and "check.torque_margin 1.25" in torque.reason
