@@ -90,6 +90,7 @@ def _summary(spec, kit, kits, balance, drive, result, runs) -> dict:
     from sheetgen.mechanics.massprops import part_mass_each_kg
     from sheetgen.mechanics.materials import sheet_material
     from sheetgen.production import patterns_json
+    from sheetgen.solver import derived_values
 
     density = sheet_material(spec.sheet.material).density_kg_m3
     costs = [r.plan.cost for r in runs]
@@ -140,6 +141,7 @@ def _summary(spec, kit, kits, balance, drive, result, runs) -> dict:
         "utilisation": [_r(r.utilisation, 4) for r in runs],
         "remnant_mm": None if result.remnant_mm is None else [_r(v, 1) for v in result.remnant_mm],
         "checks_ok": bool(balance.ok),
+        "derived": derived_values(spec, kit, balance),
         "balance": balance.to_json(),
         "gears": gear_data(drive),
         "bill_of_materials": bom,

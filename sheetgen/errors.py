@@ -21,6 +21,14 @@ class ParameterError(SheetgenError):
     """A parameter (TOML key or --set override) is missing, mistyped or out of range."""
 
 
+class SheetTooSmall(ParameterError):
+    """A part of the kit does not fit the usable sheet."""
+
+    def __init__(self, message: str, part: str):
+        super().__init__(message)
+        self.part = part
+
+
 class InputFileError(SheetgenError):
     """An input file cannot be read or does not hold what it should."""
 

@@ -17,7 +17,7 @@ import shapely
 from shapely.geometry import Polygon
 from shapely.ops import polylabel, unary_union
 
-from sheetgen.errors import GeometryBug, ParameterError
+from sheetgen.errors import GeometryBug, ParameterError, SheetTooSmall
 from sheetgen.geometry.joints import TabMissesSlot, fit_slot, slot_footprint, tab_layout, tab_rects
 from sheetgen.geometry.kerf import cut_outline
 from sheetgen.geometry.shapes import clean
@@ -183,6 +183,9 @@ def _figures(spec, L: Layout, drive) -> tuple[tuple[str, float], ...]:
         ("centre_distance_mm", drive.centre_distance_mm),
         ("support_spacing_mm", 2 * L.support_x_mm),
         ("axial_play_mm", L.axial_play_mm),
+        ("wheel_spacers", L.wheel_spacers),
+        ("mount_gap_mm", L.mount_gap_mm),
+        ("shaft_end_gap_mm", L.shaft_end_x_mm - (L.support_x_mm + L.t_mm)),
         ("tray_z_mm", L.tray_z_mm),
         ("panel_z_mm", L.panel_z_mm),
         ("base_length_mm", L.base_x1_mm - L.base_x0_mm),
@@ -203,10 +206,9 @@ def _check_fits_sheet(spec, kit: Kit) -> None:
                 break
         if not ok:
             x0, y0, x1, y1 = cut.bounds
-            raise ParameterError(
+            raise SheetTooSmall(
                 f"part {part.name} ({x1 - x0:.1f} x {y1 - y0:.1f} mm) does not fit the usable sheet "
-                f"{uw:g} x {uh:g} mm (sheet.width x sheet.height less 2 x sheet.margin); "
-                "use larger sheet stock or a smaller panel")
+                f"{uw:g} x {uh:g} mm (sheet.width x sheet.height less 2 x sheet.margin)", part.name)
 
 
 def _check_clearance(spec, kit: Kit) -> None:

@@ -8,11 +8,13 @@ panel faces the zenith. Seen along +x the chassis stacks up as:
     two stretchers between the supports, low down, at +-y, bracing them
     the turning frame between the supports: two ribs on the axle, the tray on
       the ribs, the panel in the rim layer(s) on the tray, the bezel on top
-    outboard of the +x support: a spacer, the wheel (drive.layers thick),
-      then the motor mount with the motor behind it, its pinion meshing with
-      the wheel
+    outboard of the +x support: drive.wheel_spacers spacers, the wheel
+      (drive.layers thick), a gap of drive.mount_gap, then the motor mount with
+      the motor behind it, its pinion meshing with the wheel
 
-All the numbers the part factories share are computed here, once.
+All the numbers the part factories share are computed here, once, from a
+resolved Spec (every derived key a number: see sheetgen/solver.py, which
+chooses them). Values pinned by hand that cannot work raise ParameterError.
 """
 
 from __future__ import annotations
@@ -24,7 +26,17 @@ from sheetgen.errors import ParameterError
 
 PANEL_CLEARANCE_MM = 0.3  # per side, panel in its rim opening (common practice for a drop-in fit)
 AXIAL_PLAY_MIN_MM = 0.5  # least end float of the axle between the supports
-MOUNT_GAP_MM = 1.0  # gear face to motor mount
+MOUNT_GAP_MM = 1.0  # least gap, gear face to motor mount
+SHAFT_END_GAP_MM = 1.0  # least gap, motor shaft end to the drive-side support's face
+PINION_GRIP_MIN_MM = 2.0  # least length of shaft inside the glued pinion stack ...
+PINION_GRIP_SHEETS = 0.5  # ... and at least this share of one sheet (our rule)
+
+
+def pinion_grip_mm(t_mm: float, layers: int) -> float:
+    """Least length of motor shaft the pinion stack must grip: the whole stack
+    when it is short, else max(2 mm, half a sheet); the layers are glued, so the
+    teeth engage on the full face width either way."""
+    return min(layers * t_mm, max(PINION_GRIP_MIN_MM, PINION_GRIP_SHEETS * t_mm))
 ANCHOR_HOLE_MM = 4.5  # base holes to screw the kit down (M4 clearance, ISO 273 medium)
 
 
@@ -53,11 +65,13 @@ class Layout:
     stretcher_h_mm: float
     spacers_per_side: int
     axial_play_mm: float
-    shaft_through_support: bool  # the motor shaft reaches into the +x support (it gets a clearance hole)
     # drive
+    wheel_spacers: int  # spacers between the +x support and the wheel
     wheel_x_mm: float  # inner face of the wheel stack
     gear_layers: int
+    mount_gap_mm: float  # gear stack's outer face to the motor mount
     mount_x_mm: float  # inner face of the motor mount
+    shaft_end_x_mm: float  # where the motor shaft ends (toward the +x support)
     pinion_y_mm: float
     pinion_z_mm: float
     centre_distance_mm: float
@@ -111,30 +125,31 @@ def compute_layout(spec, centre_distance_mm: float) -> Layout:
     stretcher_y = support_half_y - t / 2 - max(2 * t, 6.0)
 
     layers = spec.drive.layers
-    wheel_x = support_x + 2 * t  # support, then one spacer
-    mount_x = wheel_x + layers * t + MOUNT_GAP_MM
-    need_shaft = t + MOUNT_GAP_MM + layers * t
-    if spec.motor.shaft_length_mm < need_shaft - 1e-9:
+    n_sp = spec.drive.wheel_spacers
+    gap = spec.drive.mount_gap_mm
+    wheel_x = support_x + t + n_sp * t  # support, then the spacer stack
+    mount_x = wheel_x + layers * t + gap
+    shaft_end = mount_x + t - spec.motor.shaft_length_mm
+    grip = pinion_grip_mm(t, layers)
+    if shaft_end > wheel_x + layers * t - grip + 1e-9:
         raise ParameterError(
-            f"motor.shaft_length = {spec.motor.shaft_length_mm:g}: too short to carry the pinion through the mount; "
-            f"must be at least {need_shaft:g} mm (sheet.thickness + {MOUNT_GAP_MM:g} mm gap + drive.layers x sheet.thickness)")
-    # beyond the pinion the shaft may run on through the spacer's gap and a clearance hole
-    # in the +x support (cut when it needs one), but never into the turning frame
-    shaft_free = need_shaft + t  # mount face to the support's outer face
-    shaft_max = shaft_free + t  # to the support's inner face
-    if spec.motor.shaft_length_mm > shaft_max + 1e-9:
+            f"motor.shaft_length = {spec.motor.shaft_length_mm:g}: grips only "
+            f"{max(0.0, wheel_x + layers * t - shaft_end):.3g} mm of the pinion stack (at least {grip:g} mm); "
+            f"with drive.mount_gap = {gap:g} and drive.layers = {layers} it must be at least {t + gap + grip:g} mm "
+            "(or leave drive.mount_gap at \"auto\")")
+    if shaft_end < support_x + t + SHAFT_END_GAP_MM - 1e-9:
         raise ParameterError(
-            f"motor.shaft_length = {spec.motor.shaft_length_mm:g}: the shaft would reach past the axle support "
-            f"into the turning frame; must be at most {shaft_max:g} mm (shorten the shaft, or raise drive.layers)")
+            f"motor.shaft_length = {spec.motor.shaft_length_mm:g}: would reach within {SHAFT_END_GAP_MM:g} mm of the "
+            f"drive-side axle support with drive.wheel_spacers = {n_sp} and drive.mount_gap = {gap:g}; must be at "
+            f"most {mount_x - support_x - SHAFT_END_GAP_MM:g} mm (or leave those keys at \"auto\")")
     a = math.radians(spec.drive.pinion_angle_deg)
     pinion_y = centre_distance_mm * math.sin(a)
     pinion_z = -centre_distance_mm * math.cos(a)
-    body_bottom = pinion_z - spec.motor.body_height_mm / 2 - 4.0
-    if body_bottom < -H + 1.0:
+    floor = motor_floor_height_mm(spec, centre_distance_mm)
+    if H < floor - 1e-9:
         raise ParameterError(
             f"axle.height = {H:g}: the motor body would reach the base; must be at least "
-            f"{math.ceil((-(pinion_z - spec.motor.body_height_mm / 2 - 4.0) + 1.0) * 10) / 10:g} mm "
-            "(or turn the pinion with drive.pinion_angle)")
+            f"{math.ceil(floor * 10) / 10:g} mm (or turn the pinion with drive.pinion_angle)")
     base_half_y = max(support_half_y, abs(pinion_y) + spec.motor.body_width_mm / 2 + 4.0) + 10.0
     base_x0 = -(support_x + 2 * t) - 10.0
     base_x1 = mount_x + t + spec.motor.body_length_mm + 5.0
@@ -147,9 +162,21 @@ def compute_layout(spec, centre_distance_mm: float) -> Layout:
         support_x_mm=support_x, support_half_y_mm=support_half_y, support_hub_r_mm=support_hub_r,
         foot_h_mm=foot_h, stretcher_y_mm=stretcher_y, stretcher_h_mm=stretcher_h,
         spacers_per_side=spacers, axial_play_mm=play,
-        shaft_through_support=spec.motor.shaft_length_mm > shaft_free + 1e-9,
-        wheel_x_mm=wheel_x, gear_layers=layers, mount_x_mm=mount_x,
+        wheel_spacers=n_sp, wheel_x_mm=wheel_x, gear_layers=layers, mount_gap_mm=gap, mount_x_mm=mount_x,
+        shaft_end_x_mm=shaft_end,
         pinion_y_mm=pinion_y, pinion_z_mm=pinion_z, centre_distance_mm=centre_distance_mm,
         base_x0_mm=base_x0, base_x1_mm=base_x1, base_half_y_mm=base_half_y,
         axle_x0_mm=-(support_x + 2 * t), axle_x1_mm=wheel_x + layers * t,
     )
+
+
+MOTOR_BODY_MARGIN_MM = 4.0  # mount plate material round the motor body
+MOTOR_BASE_GAP_MM = 1.0  # least gap, mount plate to the base under the motor
+
+
+def motor_floor_height_mm(spec, centre_distance_mm: float) -> float:
+    """Least axle height that keeps the motor mount's plate round the motor body
+    clear of the base: the pinion sits centre_distance from the axle, toward
+    drive.pinion_angle from straight down."""
+    pinion_z = -centre_distance_mm * math.cos(math.radians(spec.drive.pinion_angle_deg))
+    return -(pinion_z - spec.motor.body_height_mm / 2 - MOTOR_BODY_MARGIN_MM) + MOTOR_BASE_GAP_MM

@@ -22,6 +22,7 @@ from typing import Any
 from sheetgen.errors import InputFileError, ParameterError
 
 REQUIRED = object()
+AUTO = "auto"  # a derived key left to the layout solver (sheetgen/solver.py)
 
 
 @dataclass(frozen=True)
@@ -35,6 +36,11 @@ class Key:
     lo: float | None = None
     hi: float | None = None
     choices: tuple[str, ...] = ()
+    rule: str = ""  # derived key: the solver rule that sets it when the value is "auto"
+
+    @property
+    def derived(self) -> bool:
+        return bool(self.rule)
 
     @property
     def section(self) -> str:
@@ -45,6 +51,10 @@ class Key:
         return self.path.split(".")[1]
 
     def allowed(self) -> str:
+        text = self._allowed()
+        return f'"auto" or {text}' if self.rule else text
+
+    def _allowed(self) -> str:
         if self.choices:
             return "one of " + ", ".join(repr(c) for c in self.choices)
         if self.kind is bool:
@@ -63,6 +73,11 @@ def _fmt(v: float) -> str:
 
 def _k(path, attr, kind, default, unit, doc, lo=None, hi=None, choices=()):
     return Key(path, attr, kind, default, unit, doc, lo, hi, tuple(choices))
+
+
+def _d(path, attr, kind, rule, unit, doc, lo=None, hi=None):
+    """A derived key: "auto" by default (the solver's rule sets it), or a number that pins it."""
+    return Key(path, attr, kind, AUTO, unit, doc, lo, hi, (), rule)
 
 
 MATERIAL_CHOICES = ("mdf", "birch_plywood", "cast_acrylic")
@@ -106,7 +121,7 @@ SCHEMA: tuple[Key, ...] = (
     _k("joints.tab_width", "tab_width_mm", float, 0.0, "mm",
        "Tab width along the edge (0: three sheet thicknesses, at least 6 mm).", 0, 100),
     # frame -------------------------------------------------------------
-    _k("frame.border", "border_mm", float, 8.0, "mm", "Width of the frame around the panel.", 4, 60),
+    _d("frame.border", "border_mm", float, "border_holds_bolts", "mm", "Width of the frame around the panel.", 4, 60),
     _k("frame.ledge", "ledge_mm", float, 6.0, "mm", "How far the tray reaches in under the panel edge.", 2, 40),
     _k("frame.clearance", "clearance_mm", float, 5.0, "mm",
        "Least gap between the turning frame and the fixed parts through the tracking range.", 1, 100),
@@ -115,7 +130,8 @@ SCHEMA: tuple[Key, ...] = (
     # axle --------------------------------------------------------------
     _k("axle.diameter", "diameter_mm", float, 6.0, "mm", "Axle rod diameter.", 2, 25),
     _k("axle.material", "material", str, "steel", "-", "Axle rod material.", choices=("steel", "aluminium", "beech")),
-    _k("axle.height", "height_mm", float, REQUIRED, "mm", "Axle height above the top of the base.", 20, 800),
+    _d("axle.height", "height_mm", float, "axle_clears_travel", "mm", "Axle height above the top of the base.",
+       20, 800),
     _k("axle.bearing_clearance", "bearing_clearance_mm", float, 0.15, "mm",
        "Diametral running clearance of the axle in the support holes.", 0, 1),
     _k("axle.friction", "friction", float, 0.35, "-",
@@ -140,15 +156,22 @@ SCHEMA: tuple[Key, ...] = (
     _k("motor.usable_fraction", "usable_fraction", float, 0.3, "-",
        "Share of stall torque to design with (common practice: 0.2 to 0.5).", 0.05, 0.9),
     # drive -------------------------------------------------------------
-    _k("drive.module", "module_mm", float, REQUIRED, "mm", "Gear module (ISO 54 series recommended).", 0.5, 6),
-    _k("drive.pinion_teeth", "pinion_teeth", int, REQUIRED, "-", "Teeth on the motor pinion.", 6, 200),
-    _k("drive.wheel_teeth", "wheel_teeth", int, REQUIRED, "-", "Teeth on the axle wheel.", 6, 400),
+    _d("drive.module", "module_mm", float, "teeth_carry_load", "mm", "Gear module (ISO 54 series recommended).",
+       0.5, 6),
+    _d("drive.pinion_teeth", "pinion_teeth", int, "pinion_fits_shaft", "-", "Teeth on the motor pinion.", 6, 200),
+    _d("drive.wheel_teeth", "wheel_teeth", int, "wheel_for_torque_margin", "-", "Teeth on the axle wheel.", 6, 400),
     _k("drive.pressure_angle", "pressure_angle_deg", float, 20.0, "deg", "Pressure angle of the basic rack (ISO 53: 20).",
        14.5, 25),
-    _k("drive.pinion_shift", "pinion_shift", float, 0.0, "-", "Profile shift coefficient x of the pinion.", -0.5, 1.0),
+    _d("drive.pinion_shift", "pinion_shift", float, "pinion_no_undercut", "-",
+       "Profile shift coefficient x of the pinion.", -0.5, 1.0),
     _k("drive.wheel_shift", "wheel_shift", float, 0.0, "-", "Profile shift coefficient x of the wheel.", -0.5, 1.0),
     _k("drive.backlash", "backlash_mm", float, 0.1, "mm", "Circumferential backlash, split over both gears.", 0, 1),
-    _k("drive.layers", "layers", int, 1, "-", "Sheet layers stacked per gear (face width = layers x sheet thickness).", 1, 4),
+    _d("drive.layers", "layers", int, "teeth_carry_load", "-",
+       "Sheet layers stacked per gear (face width = layers x sheet thickness).", 1, 4),
+    _d("drive.wheel_spacers", "wheel_spacers", int, "motor_shaft_reach", "-",
+       "Spacer washers on the axle between the drive-side support and the wheel.", 1, 12),
+    _d("drive.mount_gap", "mount_gap_mm", float, "motor_shaft_reach", "mm",
+       "Gap along the axle between the gear stack and the motor mount (places the motor).", 0.5, 60),
     _k("drive.efficiency", "efficiency", float, 0.85, "-", "Mesh efficiency of the laser-cut gear pair.", 0.3, 1.0),
     _k("drive.pinion_angle", "pinion_angle_deg", float, 0.0, "deg",
        "Direction of the pinion from the axle, seen along +x, from straight down toward +y.", -90, 90),
@@ -166,6 +189,8 @@ SCHEMA: tuple[Key, ...] = (
     _k("check.tooth_safety", "tooth_safety", float, 3.0, "-",
        "Safety factor on the tooth material's bending strength.", 1, 20),
     _k("check.tipping_safety", "tipping_safety", float, 1.5, "-", "Safety factor against the kit tipping over in wind.", 1, 5),
+    _k("check.torque_margin", "torque_margin", float, 1.25, "-",
+       "Motor torque on hand over torque needed that the drive is designed for.", 1, 10),
 )
 
 SCHEMA_BY_PATH = {k.path: k for k in SCHEMA}
@@ -192,6 +217,14 @@ class RotatingMass:
 
 
 @dataclass(frozen=True)
+class Derived:
+    """A value the layout solver set for a key left at "auto", and the rule that set it."""
+    path: str
+    value: float | int
+    rule: str
+
+
+@dataclass(frozen=True)
 class Spec:
     panel: Any
     sheet: Any
@@ -206,6 +239,13 @@ class Spec:
     check: Any
     rotating_masses: tuple[RotatingMass, ...]
     source: str = ""
+    derived: tuple[Derived, ...] = ()  # filled by the solver: the keys that were "auto"
+
+    def is_resolved(self) -> bool:
+        return not any(self.value(k.path) == AUTO for k in SCHEMA if k.derived)
+
+    def derived_by_path(self) -> dict[str, Derived]:
+        return {d.path: d for d in self.derived}
 
     def value(self, path: str):
         key = SCHEMA_BY_PATH[path]
@@ -232,6 +272,8 @@ def _did_you_mean(word: str, options) -> str:
 
 
 def _coerce(key: Key, value: Any, where: str):
+    if key.derived and value == AUTO:
+        return AUTO
     if key.kind is bool:
         if isinstance(value, bool):
             return value
@@ -243,6 +285,8 @@ def _coerce(key: Key, value: Any, where: str):
             raise ParameterError(f"{where}{key.path} = {value!r}: must be {key.allowed()}")
         return value
     if isinstance(value, bool) or not isinstance(value, (int, float)):
+        if key.derived:
+            raise ParameterError(f'{where}{key.path} = {value!r}: must be "auto" or a number {key._allowed()}')
         raise ParameterError(f"{where}{key.path} = {value!r}: must be a number {key.allowed()}")
     if key.kind is int:
         if isinstance(value, float) and not value.is_integer():
@@ -331,8 +375,12 @@ def _rotating_masses(entries: list, where: str) -> tuple[RotatingMass, ...]:
     return tuple(out)
 
 
-def spec_from_dict(doc: dict, overrides: tuple[tuple[str, Any], ...] = (), source: str = "") -> Spec:
-    """Validate a TOML-shaped dict (plus ``--set`` overrides) into a Spec."""
+def spec_from_dict(doc: dict, overrides: tuple[tuple[str, Any], ...] = (), source: str = "",
+                   resolve: bool = True) -> Spec:
+    """Validate a TOML-shaped dict (plus ``--set`` overrides) into a Spec.
+
+    Derived keys left at "auto" are set by the layout solver (sheetgen.solver)
+    unless ``resolve`` is false; ``spec.derived`` then says which, and by which rule."""
     where = f"{source}: " if source else ""
     flat, masses = _flatten(doc, where)
     for path, value in overrides:
@@ -354,6 +402,11 @@ def spec_from_dict(doc: dict, overrides: tuple[tuple[str, Any], ...] = (), sourc
         source=source,
     )
     check_cross_rules(spec)
+    if resolve:
+        from sheetgen.solver import solve
+
+        spec = solve(spec)
+        check_cross_rules(spec)
     return spec
 
 
@@ -415,7 +468,8 @@ def check_cross_rules(spec: Spec) -> None:
             f"motor.screw_spacing = {spec.motor.screw_spacing_mm:g}: the screw holes would cut into the shaft hole; "
             f"must exceed {max(spec.motor.boss_diameter_mm, spec.motor.shaft_diameter_mm) + spec.motor.screw_diameter_mm:g} mm"
         )
-    if spec.drive.wheel_teeth < spec.drive.pinion_teeth:
+    if AUTO not in (spec.drive.wheel_teeth, spec.drive.pinion_teeth) and \
+            spec.drive.wheel_teeth < spec.drive.pinion_teeth:
         raise ParameterError(
             f"drive.wheel_teeth = {spec.drive.wheel_teeth}: must be at least drive.pinion_teeth "
             f"({spec.drive.pinion_teeth}); the drive reduces speed")
@@ -426,7 +480,8 @@ def check_cross_rules(spec: Spec) -> None:
         raise ParameterError(
             f"frame.ledge = {spec.frame.ledge_mm:g}: must be less than a third of the panel's smaller side "
             f"({min(spec.panel.width_mm, spec.panel.height_mm) / 3:g} mm)")
-    if spec.frame.bolt_diameter_mm and spec.frame.bolt_diameter_mm > spec.frame.border_mm - 2:
+    if spec.frame.bolt_diameter_mm and spec.frame.border_mm != AUTO and \
+            spec.frame.bolt_diameter_mm > spec.frame.border_mm - 2:
         raise ParameterError(
             f"frame.bolt_diameter = {spec.frame.bolt_diameter_mm:g}: must be at most frame.border - 2 "
             f"({spec.frame.border_mm - 2:g} mm), or 0")
@@ -434,14 +489,18 @@ def check_cross_rules(spec: Spec) -> None:
 
 def reference_markdown() -> str:
     """The parameter reference as a Markdown table (for the README)."""
-    rows = ["| key | unit | default | allowed | meaning |", "|---|---|---|---|---|"]
+    from sheetgen.solver import RULES
+
+    rule_docs = {r.name: r.doc for r in RULES}
+    rows = ["| key | unit | default | allowed | derived by | meaning |", "|---|---|---|---|---|---|"]
     for k in SCHEMA:
         default = "required" if k.default is REQUIRED else (
             "true" if k.default is True else "false" if k.default is False else repr(k.default).strip("'"))
-        rows.append(f"| `{k.path}` | {k.unit} | {default} | {k.allowed()} | {k.doc} |")
+        derived = f"`{k.rule}`: {rule_docs[k.rule]}" if k.rule else "input"
+        rows.append(f"| `{k.path}` | {k.unit} | {default} | {k.allowed()} | {derived} | {k.doc} |")
     rows.append("| `[[rotating_mass]]` `name`, `mass_kg`, `position_mm` | -, kg, mm | none | mass 0 to 20 kg; "
-                "position [x, y, z] each within ±2000 mm | Hardware or a counterweight carried by the turning frame, "
-                "in the kit frame. |")
+                "position [x, y, z] each within ±2000 mm | input | Hardware or a counterweight carried by the "
+                "turning frame, in the kit frame. |")
     return "\n".join(rows)
 
 

@@ -149,11 +149,14 @@ def test_running_parts_and_least_clearance_of_the_demo(kits):
     assert axle.distance_mm == pytest.approx(spec.axle.bearing_clearance_mm / 2, abs=1e-3)
     assert axle.fixed.startswith("axle-support")
     c = report.closest[0]
-    # the wheel runs MOUNT_GAP_MM = 1 mm in front of the motor mount (sheetgen.layout), a gap along the axle
+    # the wheel runs drive.mount_gap in front of the motor mount (set by the layout solver,
+    # at least MOUNT_GAP_MM = 1 mm), a gap along the axle
     from sheetgen.layout import MOUNT_GAP_MM
 
-    assert (c.turning, c.fixed) == ("wheel#1", "motor-mount#1")
-    assert c.distance_mm == pytest.approx(MOUNT_GAP_MM, abs=1e-9) and c.steady
+    assert spec.drive.mount_gap_mm >= MOUNT_GAP_MM
+    pair = next(x for x in report.closest if (x.turning, x.fixed) == ("wheel#1", "motor-mount#1"))
+    assert pair.distance_mm == pytest.approx(spec.drive.mount_gap_mm, abs=1e-9) and pair.steady
+    assert c.distance_mm <= pair.distance_mm
     assert [x.distance_mm for x in report.closest] == sorted(x.distance_mm for x in report.closest)
 
 
@@ -422,21 +425,26 @@ def test_any_valid_kit_assembles_cleanly_or_is_refused_clearly(params):
     assert report.ok, json.dumps({k: v for k, v in report.to_json().items() if k != "solids"})[:2000]
 
 
-@pytest.mark.parametrize("length", [12.0, 13.0])
-def test_a_long_motor_shaft_gets_a_hole_in_the_support_and_clears(demo_spec, length):
-    # the demo's shaft may run on through the +x support (a clearance hole is cut for it)
+@pytest.mark.parametrize("length", [12.0, 13.0, 30.0])
+def test_a_long_motor_shaft_moves_the_wheel_out_and_clears(demo_spec, length):
+    # the layout solver adds spacers between the +x support and the wheel (and mount gap), so the
+    # shaft ends at least SHAFT_END_GAP_MM short of the support: no hole, no contact
+    from sheetgen.layout import SHAFT_END_GAP_MM
+
     spec = load_spec(DEMO, [f"motor.shaft_length={length}"])
     kit = build_kit(spec)
     from sheetgen.model3d import build_model, find_interference
 
-    assert len(kit.part("axle-support").outline.interiors) == 4  # bearing, two stretcher slots, shaft hole
+    assert len(kit.part("axle-support").outline.interiors) == 3  # bearing, two stretcher slots
+    assert dict(kit.figures)["shaft_end_gap_mm"] >= SHAFT_END_GAP_MM - 1e-9
     assert find_interference(build_model(kit, spec)) == []
 
 
-def test_a_shaft_reaching_into_the_frame_is_refused():
-    with pytest.raises(ParameterError, match=r"^motor\.shaft_length = 14: the shaft would reach past the axle "
-                                             r"support into the turning frame; must be at most 13 mm"):
-        build_kit(load_spec(DEMO, ["motor.shaft_length=14"]))
+def test_a_pinned_motor_place_that_reaches_the_support_is_refused():
+    # by hand: mount 3 + gap 1 + pinion 3 + one 3 mm spacer, less the 1 mm kept from the support = 9 mm
+    with pytest.raises(ParameterError, match=r"^motor\.shaft_length = 14: would reach within 1 mm of the "
+                                             r"drive-side axle support .* must be at most 9 mm"):
+        build_kit(load_spec(DEMO, ["motor.shaft_length=14", "drive.wheel_spacers=1", "drive.mount_gap=1"]))
 
 
 # ---------------------------------------------------------------------------
@@ -546,10 +554,12 @@ def test_picture_draws_every_solid(kits):
 def test_text_summary_names_the_figures(kits):
     from sheetgen.commands.assemble import render_text
 
-    _, _, _, report = kits["demo.toml"]
+    spec, _, _, report = kits["demo.toml"]
     text = render_text(report, "out", 1.0, 2.0, 0.5)
     assert text.startswith("Assembly: OK")
-    assert "least clearance: 1.000 mm, wheel#1 to motor-mount#1 at every angle" in text
+    # the demo's derived drive.mount_gap (the layout solver) is the wheel's gap to the mount
+    assert (f"least clearance: {spec.drive.mount_gap_mm:.3f} mm, wheel#1 to motor-mount#1 at every angle"
+            in text)
     assert "frame over the fixed parts" in text and "pinch" in text
 
 

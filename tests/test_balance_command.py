@@ -49,7 +49,8 @@ def test_table_and_cautions(group):
 
 
 def test_failing_design_still_exits_0(group):
-    res = CliRunner().invoke(group, ["balance", str(DEMO), "--json", "--set", "motor.stall_torque=0.001"])
+    res = CliRunner().invoke(group, ["balance", str(DEMO), "--json", "--set", "motor.stall_torque=0.001",
+                                        "--set", "drive.wheel_teeth=60"])  # pinned: the solver may not help
     assert res.exit_code == 0
     j = json.loads(res.output)
     assert j["ok"] is False

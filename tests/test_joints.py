@@ -80,7 +80,7 @@ def test_tab_against_slot_after_kerf(fit, kerf):
 
 def test_sheet_thickness_flows_to_every_slot():
     for t in (3.0, 4.0, 6.0):
-        spec = load_spec(DEMO, [f"sheet.thickness={t}", "axle.height=120", f"motor.shaft_length={3 * t + 1}"])
+        spec = load_spec(DEMO, [f"sheet.thickness={t}", f"motor.shaft_length={3 * t + 1}", "motor.stall_torque=0.3"])
         kit = build_kit(spec)
         for part in kit.parts:
             for short, _ in _rect_holes(part.outline):

@@ -297,7 +297,12 @@ def test_no_ballast_in_calm_air():
 
 
 def _demo_doc():
-    return tomllib.loads(DEMO.read_text(encoding="utf-8"))
+    """The demo file with its derived values pinned, so an added mass changes only what it should."""
+    doc = tomllib.loads(DEMO.read_text(encoding="utf-8"))
+    for d in spec_mod.load_spec(DEMO).derived:
+        section, name = d.path.split(".")
+        doc.setdefault(section, {})[name] = d.value
+    return doc
 
 
 def _report(doc, overrides=()):
@@ -377,15 +382,17 @@ def test_demo_report_is_consistent():
 
 def test_failing_variants_say_which_check_and_why():
     # a strong drive and a tooth safety factor of 20: only the tooth check fails
+    # (gear size pinned: left at "auto" the layout solver would add layers until the teeth carry the load;
+    # continuous drive, so the pulse checks stay out of it)
     strong = [("drive.wheel_teeth", 72), ("motor.usable_fraction", 0.9), ("motor.stall_torque", 0.5),
-              ("drive.pulse_capacitance", 0.0), ("drive.pulse_voltage", 0.0)]
+              ("drive.module", 1.5), ("drive.layers", 1), ("drive.pulse_capacitance", 0.0), ("drive.pulse_voltage", 0.0)]
     r = _report(_demo_doc(), strong + [("check.tooth_safety", 20.0)])
     failed = [c for c in r.checks if c.binding and not c.passed]
     assert not r.ok and [c.name for c in failed] == ["tooth stress"]
     assert "Lewis" in failed[0].reason and "drive.layers" in failed[0].reason
     assert _report(_demo_doc(), strong).ok
     # a motor far too weak: the torque check fails and says what it needs and what would help
-    r = _report(_demo_doc(), [("motor.stall_torque", 0.004)])
+    r = _report(_demo_doc(), [("motor.stall_torque", 0.004), ("drive.wheel_teeth", 60)])
     failed = {c.name: c for c in r.checks if c.binding and not c.passed}
     assert not r.ok and "motor torque" in failed
     assert "needs" in failed["motor torque"].reason and "gear ratio" in failed["motor torque"].reason

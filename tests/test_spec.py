@@ -194,3 +194,26 @@ def test_unreadable_files(tmp_path):
     binary.write_bytes(b"\xff\xfe\x00")
     with pytest.raises(InputFileError, match="cannot read"):
         load_spec(binary)
+
+
+def test_derived_keys_take_auto_or_a_number(doc):
+    d = copy.deepcopy(doc)
+    d["axle"]["height"] = "auto"
+    assert spec_from_dict(d, resolve=False).axle.height_mm == "auto"
+    d["axle"]["height"] = 95
+    assert spec_from_dict(d, resolve=False).axle.height_mm == 95.0
+    d["axle"]["height"] = "high"
+    with pytest.raises(ParameterError, match=r'^axle\.height = \'high\': must be "auto" or a number from 20 to 800 mm$'):
+        spec_from_dict(d, resolve=False)
+    d["axle"]["height"] = 5
+    with pytest.raises(ParameterError, match=r'^axle\.height = 5: must be "auto" or from 20 to 800 mm$'):
+        spec_from_dict(d, resolve=False)
+    with pytest.raises(ParameterError, match=r"^drive\.layers = 2\.5: must be a whole number"):
+        load_spec(DEMO, ["drive.layers=2.5"])
+
+
+def test_a_resolved_spec_lists_what_was_derived(demo_spec):
+    assert demo_spec.is_resolved()
+    paths = {d.path for d in demo_spec.derived}
+    assert "axle.height" in paths and "panel.width" not in paths
+    assert all(d.rule for d in demo_spec.derived)

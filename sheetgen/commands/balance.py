@@ -31,12 +31,19 @@ def command(params: str, overrides: tuple[str, ...], as_json: bool) -> None:
     """
     from sheetgen.kit import build_kit
     from sheetgen.mechanics.check import balance_check, render_text
+    from sheetgen.solver import derived_lines, derived_values
     from sheetgen.spec import load_spec
 
     spec = load_spec(params, overrides)
     kit = build_kit(spec)
     report = balance_check(kit, spec)
     if as_json:
-        click.echo(json.dumps(report.to_json(), indent=2, allow_nan=False))
+        out = report.to_json()
+        out["derived"] = derived_values(spec, kit, report)
+        click.echo(json.dumps(out, indent=2, allow_nan=False))
     else:
         click.echo(render_text(report))
+        lines = derived_lines(spec, kit, report)
+        if lines:
+            click.echo("\nDerived from the inputs (key = value (rule); give a number in the file to pin one):")
+            click.echo("\n".join(lines))

@@ -93,10 +93,25 @@ def sweep_clearance(silhouettes: list[Silhouette], angles_deg: tuple[float, floa
     if not pairs:
         return best
     fixed_geoms = np.array([b.shape for _, b in pairs], dtype=object)
+    # each turning silhouette is turned once per angle, all together (shapely 2 array functions)
+    names = list(dict.fromkeys(a.name for a, _ in pairs))
+    shapes = {a.name: a.shape for a, _ in pairs}
+    turning_geoms = np.array([shapes[n] for n in names], dtype=object)
+    index = np.array([names.index(a.name) for a, _ in pairs])
+    # a pair can come no closer than the fixed shape's distance from the axle less the turning
+    # shape's reach (whatever the angle): pairs that cannot beat the best so far are skipped
+    reach = np.array([np.hypot(*np.asarray(shapely.get_coordinates(g)).T).max() for g in turning_geoms])
+    bound = np.maximum(0.0, shapely.distance(shapely.points(0.0, 0.0), fixed_geoms) - reach[index])
     for ang in angles:
-        moved = np.array([affinity.rotate(a.shape, ang, origin=(0.0, 0.0)) for a, _ in pairs], dtype=object)
-        dist = shapely.distance(moved, fixed_geoms)
-        k = int(np.argmin(dist))
-        if dist[k] < best.min_clearance_mm - 1e-12:
-            best = SweepResult(float(dist[k]), float(ang), pairs[k][0].name, pairs[k][1].name)
+        active = np.flatnonzero(bound < best.min_clearance_mm - 1e-12)
+        if active.size == 0:
+            break
+        c, s = math.cos(math.radians(ang)), math.sin(math.radians(ang))
+        turn = np.array([[c, s], [-s, c]])  # row vectors: (y, z) -> (c y - s z, s y + c z)
+        moved = shapely.transform(turning_geoms, lambda yz, turn=turn: yz @ turn)[index[active]]
+        dist = shapely.distance(moved, fixed_geoms[active])
+        j = int(np.argmin(dist))
+        k = int(active[j])
+        if dist[j] < best.min_clearance_mm - 1e-12:
+            best = SweepResult(float(dist[j]), float(ang), pairs[k][0].name, pairs[k][1].name)
     return best

@@ -115,6 +115,7 @@ def render_report(build, assembly_svg: str | None = None) -> str:
            )),
            "</div>"]
     out += _checks(build)
+    out += _derived(build)
     out += _sheets(build)
     out += _bom(build)
     out += _gears(build)
@@ -128,6 +129,31 @@ def render_report(build, assembly_svg: str | None = None) -> str:
             "sources named in the project's documentation; check press fits on a test coupon first.</small></p>",
             "</main></body></html>\n"]
     return "\n".join(out)
+
+
+def _derived(build):
+    """Derived values beside the inputs they follow from."""
+    from sheetgen.solver import rule_doc
+
+    rows = build.summary.get("derived", {})
+    if not rows:
+        return []
+    body = []
+    for key, d in rows.items():
+        v = d["value"]
+        value = "[" + ", ".join(f"{x:g}" for x in v) + "]" if isinstance(v, list) else f"{v:g}"
+        body.append((f"<code>{escape(key)}</code>", value, f"<code>{escape(d['rule'])}</code>",
+                     escape(rule_doc(d["rule"]))))
+    spec = build.spec
+    inputs = (f"panel {spec.panel.width_mm:g} × {spec.panel.height_mm:g} × {spec.panel.thickness_mm:g} mm, "
+              f"{spec.panel.mass_kg:g} kg; sheet {spec.sheet.thickness_mm:g} mm "
+              f"{spec.sheet.material.replace('_', ' ')}; kerf {spec.laser.kerf_mm:g} mm; motor "
+              f"{spec.motor.stall_torque_Nm:g} N·m stall, {spec.motor.shaft_length_mm:g} mm shaft; site "
+              f"{spec.site.latitude_deg:g}°, wind {spec.site.wind_speed_m_s:g} m/s")
+    return ["<h2>Derived values</h2>",
+            f"<p><small>From the inputs ({escape(inputs)}). Keys left at \"auto\" were set by the rule named; "
+            "give a number in the parameter file to pin one.</small></p>",
+            _table(["key", "value", "rule", "how"], body, num=(1,))]
 
 
 def _checks(build):

@@ -25,13 +25,14 @@ def collar(spec, L: Layout, drive) -> Blank:
 
 
 def spacer(spec, L: Layout, drive) -> Blank:
-    """Loose washers between each rib and its support, and one between the +x support and the wheel."""
+    """Loose washers between each rib and its support, and drive.wheel_spacers between the +x
+    support and the wheel (their number places the wheel, so the motor shaft clears the support)."""
     d = spec.axle.diameter_mm
     od = d + 2 * max(5.0, 2 * L.t_mm)
     t, xs = L.t_mm, L.support_x_mm
     xs_list = [-xs + i * t for i in range(L.spacers_per_side)]
     xs_list += [xs - (i + 1) * t for i in range(L.spacers_per_side)]
-    xs_list.append(xs + t)
+    xs_list += [xs + t + i * t for i in range(L.wheel_spacers)]  # between the +x support and the wheel
     return Blank(
         name="spacer",
         outline=disc(0.0, 0.0, od / 2),

@@ -4,8 +4,7 @@ from __future__ import annotations
 
 from sheetgen.geometry.joints import Edge
 from sheetgen.geometry.shapes import disc, hull, rect
-from sheetgen.errors import ParameterError
-from sheetgen.layout import ANCHOR_HOLE_MM, MOUNT_GAP_MM, Layout
+from sheetgen.layout import ANCHOR_HOLE_MM, MOTOR_BODY_MARGIN_MM, Layout
 from sheetgen.part import place
 from sheetgen.parts import Blank, round_hole
 
@@ -36,14 +35,6 @@ def axle_support(spec, L: Layout, drive) -> Blank:
     t = L.t_mm
     bearing = spec.axle.diameter_mm + spec.axle.bearing_clearance_mm
     holes = [round_hole(0.0, 0.0, bearing)]
-    if L.shaft_through_support:
-        # a long motor shaft runs on into the support behind the pinion: give it room
-        d = spec.motor.shaft_diameter_mm + SHAFT_CLEARANCE_MM
-        if not outline.buffer(-2.0).contains(disc(L.pinion_y_mm, L.pinion_z_mm, d / 2)):
-            raise ParameterError(
-                f"motor.shaft_length = {spec.motor.shaft_length_mm:g}: the shaft would strike the edge of the axle "
-                f"support; must be at most {2 * t + MOUNT_GAP_MM + L.gear_layers * t:g} mm here")
-        holes.append(round_hole(L.pinion_y_mm, L.pinion_z_mm, d))
     return Blank(
         name="axle-support",
         outline=outline,
@@ -77,8 +68,8 @@ def motor_mount(spec, L: Layout, drive) -> Blank:
     with the wheel (local x = kit y, local y = kit z)."""
     m = spec.motor
     H, py, pz = L.axle_height_mm, L.pinion_y_mm, L.pinion_z_mm
-    half_w = m.body_width_mm / 2 + 4.0
-    half_h = m.body_height_mm / 2 + 4.0
+    half_w = m.body_width_mm / 2 + MOTOR_BODY_MARGIN_MM
+    half_h = m.body_height_mm / 2 + MOTOR_BODY_MARGIN_MM
     if m.screw_spacing_mm:
         half_w = max(half_w, m.screw_spacing_mm / 2 + m.screw_diameter_mm / 2 + 4.0)
     foot_h = max(2 * L.t_mm, 8.0)
