@@ -330,7 +330,7 @@ def _ground_and_footprint(kit: Kit) -> tuple[float, float, float]:
 
 
 @dataclass(frozen=True)
-class AxleLoad:
+class LoadFigures:
     """The worst load torque at the axle and what it is made of."""
     mass: MassProperties
     tracking: solar.TrackingRange
@@ -340,11 +340,12 @@ class AxleLoad:
     radial_load_N: float
     axial_load_N: float
     friction_torque_Nm: float
+    friction_calm_Nm: float  # the bearing friction without the wind's push
     load_torque_Nm: float
     notes: tuple[str, ...]
 
 
-def axle_load(kit: Kit, spec) -> AxleLoad:
+def axle_load(kit: Kit, spec) -> LoadFigures:
     """Gravity, friction and wind torque at the axle, taken together (the layout
     solver sizes the drive from this; the balance check reports it)."""
     site, ax = spec.site, spec.axle
@@ -375,7 +376,7 @@ def axle_load(kit: Kit, spec) -> AxleLoad:
         friction_calm += ax.friction * axial * THRUST_RADIUS_AXLE_DIAMETERS * ax.diameter_mm * 1e-3
 
     load = g_max + friction + wind.torque_Nm
-    return AxleLoad(mp, tr, g_max, g_rot, wind, radial, axial, friction, load, tuple(notes))
+    return LoadFigures(mp, tr, g_max, g_rot, wind, radial, axial, friction, friction_calm, load, tuple(notes))
 
 
 def balance_check(kit: Kit, spec) -> BalanceReport:
@@ -389,6 +390,7 @@ def balance_check(kit: Kit, spec) -> BalanceReport:
     mp, tr, tilt, wind = al.mass, al.tracking, al.tracking.axle_tilt_deg, al.wind
     g_max, g_rot, load = al.gravity_torque_max_Nm, al.gravity_worst_rotation_deg, al.load_torque_Nm
     radial, axial, friction = al.radial_load_N, al.axial_load_N, al.friction_torque_Nm
+    friction_calm = al.friction_calm_Nm
     notes = list(al.notes)
 
     # drive
