@@ -8,9 +8,9 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-from sheetgen.cutplan import CutPlan
-from sheetgen.part import Kit
-from sheetgen.production import PlacedSheet
+from sheetgen.production.cutplan import CutPlan
+from sheetgen.design.part import Kit
+from sheetgen.production.runs import PlacedSheet
 
 
 @dataclass(frozen=True)
@@ -26,8 +26,8 @@ class BuildResult:
     kit: Kit
     kits: int
     balance: object  # sheetgen.mechanics.check.BalanceReport
-    drive: object  # sheetgen.gears.GearPair
-    nest: object  # sheetgen.nesting.NestResult
+    drive: object  # sheetgen.drive.gears.GearPair
+    nest: object  # sheetgen.production.nesting.NestResult
     sheets: tuple[SheetRun, ...]
     items: tuple
     summary: dict
@@ -35,7 +35,7 @@ class BuildResult:
 
 
 def _plan(args):
-    from sheetgen.cutplan import plan_sheet
+    from sheetgen.production.cutplan import plan_sheet
 
     contours, settings, sheet_mm = args
     return plan_sheet(list(contours), settings, sheet_size_mm=sheet_mm)
@@ -48,13 +48,13 @@ def run_build(spec, kits: int, progress=None, jobs: int | None = None) -> BuildR
     on it)."""
     import os
 
-    from sheetgen.cutplan import settings_from_spec
+    from sheetgen.production.cutplan import settings_from_spec
     from sheetgen.errors import GeometryBug, ParameterError
     from sheetgen.io.sheets import map_jobs
-    from sheetgen.kit import build_kit
+    from sheetgen.design.kit import build_kit
     from sheetgen.mechanics.check import balance_check
-    from sheetgen.nesting import nest, sheet_patterns, verify
-    from sheetgen.production import kit_items, placed_sheets
+    from sheetgen.production.nesting import nest, sheet_patterns, verify
+    from sheetgen.production.runs import kit_items, placed_sheets
 
     if kits < 1:
         raise ParameterError(f"--kits {kits}: must be a whole number >= 1")
@@ -89,8 +89,8 @@ def _summary(spec, kit, kits, balance, drive, result, runs) -> dict:
     from sheetgen.io.sheets import sheet_name
     from sheetgen.mechanics.massprops import part_mass_each_kg
     from sheetgen.mechanics.materials import sheet_material
-    from sheetgen.production import patterns_json
-    from sheetgen.solver import derived_values
+    from sheetgen.production.runs import patterns_json
+    from sheetgen.design.solver import derived_values
 
     density = sheet_material(spec.sheet.material).density_kg_m3
     costs = [r.plan.cost for r in runs]

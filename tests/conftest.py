@@ -38,14 +38,14 @@ def pytest_runtest_call(item):
 
 @pytest.fixture(scope="session")
 def demo_spec():
-    from sheetgen.spec import load_spec
+    from sheetgen.design.spec import load_spec
 
     return load_spec(DEMO)
 
 
 @pytest.fixture(scope="session")
 def demo_kit(demo_spec):
-    from sheetgen.kit import build_kit
+    from sheetgen.design.kit import build_kit
 
     return build_kit(demo_spec)
 

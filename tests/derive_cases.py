@@ -24,7 +24,7 @@ STRONG_MOTOR = ["motor.body_width=37", "motor.body_height=37", "motor.body_lengt
 # a large laser bed, so the whole panel range can fit (a scenario choice)
 SHEET = ["sheet.width=1200", "sheet.height=900"]
 
-RANGES = {  # the schema's full ranges for the drawn keys (sheetgen/spec.py)
+RANGES = {  # the schema's full ranges for the drawn keys (sheetgen/design/spec.py)
     "panel.width": (40.0, 600.0),
     "panel.height": (40.0, 600.0),
     "panel.thickness": (1.0, 25.0),
@@ -95,9 +95,9 @@ def kerf_exact(kit, kerf_mm: float) -> bool:
 
 
 def judge(base, overrides: list[str]) -> Outcome:
-    from sheetgen.kit import build_kit, frame_sweep, travel_deg
+    from sheetgen.design.kit import build_kit, frame_sweep, travel_deg
     from sheetgen.mechanics.check import balance_check
-    from sheetgen.spec import load_spec
+    from sheetgen.design.spec import load_spec
 
     try:
         spec = load_spec(base, overrides)

@@ -15,7 +15,7 @@ Outside references used here:
   circle times cos(pressure angle) (ISO/TR 10064-2, from memory).
 
 Internal cross-checks (two parts of sheetgen held against each other, marked
-so beside the check): ``sheetgen.kit.frame_sweep``, a separate 2D silhouette
+so beside the check): ``sheetgen.design.kit.frame_sweep``, a separate 2D silhouette
 sweep of the turning frame, against the 3D sweep; ``sheetgen.mechanics``
 (balance check: masses and CG from shapely areas and centroids) against the
 solids' own mass properties; the tracking range of ``sheetgen.mechanics.solar``
@@ -40,9 +40,9 @@ from hypothesis import example, given, settings
 from hypothesis import strategies as st
 
 from sheetgen.errors import ParameterError, SheetgenError
-from sheetgen.kit import build_kit, frame_sweep
+from sheetgen.design.kit import build_kit, frame_sweep
 from sheetgen.mechanics.solar import tracking_range
-from sheetgen.spec import load_spec
+from sheetgen.design.spec import load_spec
 from tests import _refs as R
 from tests.conftest import DEMO, PARAMS, ROOT
 
@@ -92,8 +92,8 @@ from click.testing import CliRunner
 from sheetgen.cli import main
 res = CliRunner().invoke(main, ["parts", {str(DEMO)!r}, "-o", {str(tmp_path / "parts")!r}])
 assert res.exit_code == 0, res.output
-import sheetgen.model3d, sheetgen.io.step, sheetgen.commands.assemble, sheetgen.gears
-import sheetgen.mechanics.check, sheetgen.commands.balance, sheetgen.nesting
+import sheetgen.model3d, sheetgen.io.step, sheetgen.commands.assemble, sheetgen.drive.gears
+import sheetgen.mechanics.check, sheetgen.commands.balance, sheetgen.production.nesting
 print(sorted(m for m in sys.modules if m.split(".")[0] in ("cadquery", "OCP")))
 """
     out = subprocess.run([sys.executable, "-c", code], cwd=ROOT, capture_output=True, text=True, timeout=300)
@@ -129,7 +129,7 @@ def test_shipped_kits_assemble_cleanly(kits, name):
 
 @pytest.mark.parametrize("name", [p.name for p in VARIANTS])
 def test_3d_frame_clearance_agrees_with_the_2d_sweep(kits, name):
-    # internal cross-check: sheetgen.kit.frame_sweep, the separate 2D silhouette sweep; for a
+    # internal cross-check: sheetgen.design.kit.frame_sweep, the separate 2D silhouette sweep; for a
     # plate across the axle facing a plate along it, the 2D distance is the 3D one
     spec, kit, _, report = kits[name]
     tr = tracking_range(spec.site.latitude_deg, spec.site.axle, spec.site.travel_limit_deg)
@@ -151,7 +151,7 @@ def test_running_parts_and_least_clearance_of_the_demo(kits):
     c = report.closest[0]
     # the wheel runs drive.mount_gap in front of the motor mount (set by the layout solver,
     # at least MOUNT_GAP_MM = 1 mm), a gap along the axle
-    from sheetgen.layout import MOUNT_GAP_MM
+    from sheetgen.design.layout import MOUNT_GAP_MM
 
     assert spec.drive.mount_gap_mm >= MOUNT_GAP_MM
     pair = next(x for x in report.closest if (x.turning, x.fixed) == ("wheel#1", "motor-mount#1"))
@@ -185,7 +185,7 @@ def test_a_frame_hitting_the_stand_is_caught_with_parts_and_angle(wrong):
     assert worst.worst_volume_mm3 > 1.0
     # every 3D collision overlaps in 2D at its worst angle, and is clear in 2D one step
     # nearer to rest than where the 3D sweep first finds it (2D clear implies 3D clear)
-    from sheetgen.geometry.sweep import kit_silhouettes, sweep_clearance
+    from sheetgen.design.clearance import kit_silhouettes, sweep_clearance
 
     sils = {s.name: s for s in kit_silhouettes(kit)}
     for c in report.collisions:
@@ -252,7 +252,7 @@ def test_pinion_turn_for_a_pinion_straight_below_the_wheel():
     # is a multiple of 10 deg); the 12-tooth pinion must then face it with a space: half
     # its 30 deg pitch
     from sheetgen.model3d import mesh_turn_deg
-    from sheetgen.part import place
+    from sheetgen.geometry.placement import place
 
     wheel = place((0, 1, 0), (0, 0, 1), (0, 0, 0), rotating=True)
     pinion = place((0, 1, 0), (0, 0, 1), (0, 0, -36.43))
@@ -337,7 +337,7 @@ def test_sweep_angles_cover_the_range_in_steps_of_at_most_two_degrees():
 def _moved(kit, part_name, dz=0.0, comp_name=None, dx=0.0):
     import dataclasses
 
-    from sheetgen.part import Placement
+    from sheetgen.geometry.placement import Placement
 
     parts = []
     for p in kit.parts:
@@ -429,7 +429,7 @@ def test_any_valid_kit_assembles_cleanly_or_is_refused_clearly(params):
 def test_a_long_motor_shaft_moves_the_wheel_out_and_clears(demo_spec, length):
     # the layout solver adds spacers between the +x support and the wheel (and mount gap), so the
     # shaft ends at least SHAFT_END_GAP_MM short of the support: no hole, no contact
-    from sheetgen.layout import SHAFT_END_GAP_MM
+    from sheetgen.design.layout import SHAFT_END_GAP_MM
 
     spec = load_spec(DEMO, [f"motor.shaft_length={length}"])
     kit = build_kit(spec)

@@ -24,7 +24,7 @@ from hypothesis import given
 from hypothesis import strategies as st
 from shapely.geometry import LineString, Point, Polygon, box
 
-from sheetgen.cutplan import (
+from sheetgen.production.cutplan import (
     CutPlan,
     LaserSettings,
     PlannedContour,
@@ -32,7 +32,8 @@ from sheetgen.cutplan import (
     plan_sheet,
 )
 from sheetgen.errors import ParameterError, SheetgenError
-from sheetgen.io.dxf import Contour, dxf_bytes, polygon_contours
+from sheetgen.geometry.contour import Contour, polygon_contours
+from sheetgen.io.dxf import dxf_bytes
 
 SETTINGS = LaserSettings(cut_speed_mm_s=20.0, rapid_speed_mm_s=200.0, pierce_time_s=0.5)
 
@@ -332,7 +333,7 @@ def _write_with_lead_ins(plan: CutPlan, path) -> None:
 def test_lead_ins_written_as_proposed_measure_and_pass_preflight(tmp_path):
     from ezdxf.math import bulge_to_arc
 
-    from sheetgen.preflight import preflight_file
+    from sheetgen.production.preflight import preflight_file
 
     contours = _nested_sheet()
     settings = LaserSettings(cut_speed_mm_s=20.0, rapid_speed_mm_s=200.0, pierce_time_s=0.5, lead_in_mm=2.0)

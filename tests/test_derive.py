@@ -16,10 +16,10 @@ from hypothesis import event, given, settings
 from hypothesis import strategies as st
 
 from sheetgen.errors import ParameterError
-from sheetgen.kit import build_kit, frame_sweep, travel_deg
+from sheetgen.design.kit import build_kit, frame_sweep, travel_deg
 from sheetgen.mechanics.check import balance_check
-from sheetgen.solver import RULES, solve_with_figures, undercut_free_shift
-from sheetgen.spec import SCHEMA, load_spec
+from sheetgen.design.solver import RULES, solve_with_figures, undercut_free_shift
+from sheetgen.design.spec import SCHEMA, load_spec
 from tests.conftest import DEMO, PARAMS
 from tests.derive_cases import MATERIALS, PANEL_DENSITY_KG_M3, RANGES, Draw, judge, suggestion
 
@@ -54,13 +54,13 @@ def test_every_derived_key_names_a_rule_and_every_rule_sets_derived_keys():
     for rule in RULES:
         assert all(derived[p].rule == rule.name for p in rule.sets)
     # nothing derivable is required
-    from sheetgen.spec import REQUIRED
+    from sheetgen.design.spec import REQUIRED
 
     assert all(k.default is not REQUIRED for k in derived.values())
 
 
 def test_reference_table_marks_derived_keys_with_their_rule():
-    from sheetgen.spec import reference_markdown
+    from sheetgen.design.spec import reference_markdown
 
     table = reference_markdown()
     row = next(line for line in table.splitlines() if line.startswith("| `axle.height`"))
@@ -271,8 +271,8 @@ def test_demo_derived_values_against_the_hand_set_demo(demo):
 def test_demo_solve_settles_within_the_round_bound():
     import tomllib
 
-    from sheetgen.solver import MAX_ROUNDS
-    from sheetgen.spec import spec_from_dict
+    from sheetgen.design.solver import MAX_ROUNDS
+    from sheetgen.design.spec import spec_from_dict
 
     raw = spec_from_dict(tomllib.loads(DEMO.read_text()), resolve=False)
     sol = solve_with_figures(raw)
@@ -283,7 +283,7 @@ def test_summary_and_balance_text_show_derived(demo, tmp_path):
     from click.testing import CliRunner
 
     from sheetgen.cli import main
-    from sheetgen.solver import derived_values
+    from sheetgen.design.solver import derived_values
 
     spec, kit, report = demo
     table = derived_values(spec, kit, report)

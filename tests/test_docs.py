@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from sheetgen.spec import reference_markdown
+from sheetgen.design.spec import reference_markdown
 from tests.conftest import ROOT
 
 
@@ -12,7 +12,7 @@ def test_readme_parameter_reference_is_current():
     start = readme.index("\n", start) + 1
     end = readme.index("<!-- parameter-reference:end")
     assert readme[start:end].strip() == reference_markdown().strip(), (
-        "README parameter table is stale: paste the output of `python -m sheetgen.spec`")
+        "README parameter table is stale: paste the output of `python -m sheetgen.design.spec`")
 
 
 def test_readme_starts_with_the_job_then_two_commands():

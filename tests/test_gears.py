@@ -22,8 +22,9 @@ from shapely import affinity
 from shapely.geometry import Point, Polygon
 
 from sheetgen.errors import SheetgenError
-from sheetgen.gears import (GearSpec, Hub, centre_distance_mm, check_gear_spec, contact_ratio, gear_blank,
-                            gear_pair, lewis_form_factor, lewis_stress_MPa, web_mm)
+from sheetgen.drive.gears import (GearSpec, Hub, centre_distance_mm, check_gear_spec, contact_ratio, gear_blank,
+                                  gear_pair, web_mm)
+from sheetgen.mechanics.teeth import lewis_form_factor, lewis_stress_MPa
 from tests import _refs as R
 from tests._refs import tooth_thickness_at_diameter_mm
 

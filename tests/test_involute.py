@@ -22,7 +22,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from shapely.geometry import Point, Polygon
 
-from sheetgen.geometry import involute as I
+from sheetgen.drive import involute as I
 from tests import _refs as R
 
 # ---------------------------------------------------------------------------

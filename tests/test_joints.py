@@ -16,8 +16,8 @@ from shapely.geometry import LineString, Polygon
 
 from sheetgen.geometry.joints import FIT_CLEARANCE_MM, tab_layout
 from sheetgen.geometry.kerf import cut_outline
-from sheetgen.kit import build_kit
-from sheetgen.spec import load_spec
+from sheetgen.design.kit import build_kit
+from sheetgen.design.spec import load_spec
 from tests import _refs as R
 from tests.conftest import DEMO
 

@@ -30,8 +30,8 @@ from shapely.geometry import Point, Polygon, box
 
 from sheetgen.errors import ParameterError
 from sheetgen.geometry.kerf import beam_leaves, cut_outline
-from sheetgen.kit import build_kit
-from sheetgen.spec import load_spec
+from sheetgen.design.kit import build_kit
+from sheetgen.design.spec import load_spec
 from tests import _refs as R
 from tests.conftest import DEMO
 

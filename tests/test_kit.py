@@ -7,8 +7,8 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from sheetgen.errors import ParameterError
-from sheetgen.kit import build_kit, frame_sweep, travel_deg
-from sheetgen.spec import load_spec
+from sheetgen.design.kit import build_kit, frame_sweep, travel_deg
+from sheetgen.design.spec import load_spec
 from tests.conftest import DEMO, PARAMS
 
 FRAME = {"tray", "rim", "bezel"}

@@ -17,13 +17,14 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from shapely.geometry import Polygon, box
 
-from sheetgen import spec as spec_mod
+from sheetgen.design import spec as spec_mod
 from sheetgen.errors import ParameterError
-from sheetgen.gears import lewis_form_factor
+from sheetgen.mechanics.teeth import lewis_form_factor
 from sheetgen.mechanics import loads, materials
 from sheetgen.mechanics.check import balance_check, render_text, wind_plate_footprint
 from sheetgen.mechanics.massprops import counterweight_at_arm, mass_properties, part_mass_each_kg
-from sheetgen.part import Component, Kit, Part, place, rotation_x
+from sheetgen.design.part import Component, Kit, Part
+from sheetgen.geometry.placement import place, rotation_x
 
 X, Y, Z = (1.0, 0.0, 0.0), (0.0, 1.0, 0.0), (0.0, 0.0, 1.0)
 DEMO = Path(__file__).resolve().parents[1] / "params" / "demo.toml"
@@ -306,7 +307,7 @@ def _demo_doc():
 
 
 def _report(doc, overrides=()):
-    from sheetgen.kit import build_kit
+    from sheetgen.design.kit import build_kit
 
     s = spec_mod.spec_from_dict(doc, tuple(overrides))
     return balance_check(build_kit(s), s)
@@ -339,8 +340,8 @@ def test_demo_counterweight_clears_the_fixed_parts():
     # keeps frame.clearance from every fixed part and lies opposite the CG
     from shapely.geometry import Point
 
-    from sheetgen.geometry.sweep import Silhouette, kit_silhouettes, sweep_clearance
-    from sheetgen.kit import build_kit
+    from sheetgen.design.clearance import Silhouette, kit_silhouettes, sweep_clearance
+    from sheetgen.design.kit import build_kit
     from sheetgen.mechanics.massprops import COUNTERWEIGHT_DIAMETER_MM
 
     s = spec_mod.spec_from_dict(_demo_doc())

@@ -26,7 +26,7 @@ from shapely import affinity
 from shapely.geometry import Point, Polygon, box
 
 from sheetgen.errors import GeometryBug, SheetgenError
-from sheetgen.nesting import (
+from sheetgen.production.nesting import (
     NestItem,
     RunTooLarge,
     lower_bound_sheets,
@@ -34,7 +34,7 @@ from sheetgen.nesting import (
     sheet_patterns,
     verify,
 )
-from sheetgen.nesting.nfp import clearance_outline, no_fit_polygon
+from sheetgen.production.nesting.nfp import clearance_outline, no_fit_polygon
 
 TOL = 1e-6
 
@@ -421,7 +421,7 @@ def test_large_run_is_cut_from_repeated_patterns(monkeypatch):
     # Hand count: 10 mm squares, spacing 0, on a 25 x 25 sheet: 2 x 2 per sheet
     # (3 x 10 > 25), so 40 squares need exactly 10 sheets, all alike; the area
     # bound is ceil(40 x 100 / 625) = 7 (no square is over half the sheet).
-    from sheetgen.nesting import engine
+    from sheetgen.production.nesting import engine
 
     monkeypatch.setattr(engine, "BATCH_PARTS", 8)
     items = [NestItem("sq", box(0, 0, 10, 10), 20, (0.0,)), NestItem("sq2", box(0, 0, 10, 10), 20, (0.0,))]
@@ -480,8 +480,8 @@ def test_nest_command_refuses_a_run_above_the_ceiling(tmp_path):
 def test_last_sheet_emptied_into_the_gaps_of_the_others():
     # Hand count: a 20 mm square on a 25 mm sheet leaves a 5 mm strip along two
     # sides; a 4 mm square fits there, so a second sheet holding only it goes.
-    from sheetgen.nesting.engine import _empty_last
-    from sheetgen.nesting.place import ShapeLibrary, Work
+    from sheetgen.production.nesting.engine import _empty_last
+    from sheetgen.production.nesting.place import ShapeLibrary, Work
 
     lib = ShapeLibrary([box(0, 0, 20, 20), box(0, 0, 4, 4)], [(0.0,), (0.0,)], 0.0, 1e-7, 1000.0)
     usable = (0.0, 0.0, 25.0, 25.0)

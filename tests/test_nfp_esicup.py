@@ -31,8 +31,8 @@ import pytest
 import shapely
 from shapely import affinity
 
-from sheetgen.nesting.esicup import read_instance
-from sheetgen.nesting.nfp import inner_fit_rect, no_fit_polygon, shape_of
+from sheetgen.production.nesting.esicup import read_instance
+from sheetgen.production.nesting.nfp import inner_fit_rect, no_fit_polygon, shape_of
 
 ESICUP = Path(__file__).resolve().parent / "data" / "esicup"
 # (polygon, polygon) pairs whose stored NFP does not describe those pieces
@@ -153,8 +153,8 @@ def test_xml_reader_counts(instances, name, pieces, area, width):
 
 def _recorded_layout(inst, solution, reflect: bool):
     """A NestResult of a layout recorded in the file (and the items it uses)."""
-    from sheetgen.nesting import NestItem, NestResult, PlacedPart
-    from sheetgen.nesting.nfp import rotate_ccw
+    from sheetgen.production.nesting import NestItem, NestResult, PlacedPart
+    from sheetgen.production.nesting.nfp import rotate_ccw
 
     items = [NestItem(it.name, affinity.scale(it.polygon, 1, -1, origin=(0, 0)) if reflect else it.polygon,
                       it.qty, it.rotations_deg) for it in inst.items]
@@ -178,7 +178,7 @@ def _recorded_layout(inst, solution, reflect: bool):
 def test_verify_accepts_the_recorded_shapes1_layouts(instances):
     # Source: ESICUP recorded solutions for SHAPES1 (GLSHA 57, SAHA 56): no
     # overlap, inside [0, L] x [0, 40] (README: checked with shapely).
-    from sheetgen.nesting import verify
+    from sheetgen.production.nesting import verify
 
     inst = instances["shapes1"]
     for sol in inst.solutions:
@@ -191,7 +191,7 @@ def test_verify_rejects_shapes0_layouts_read_without_the_reflection(instances):
     # Source: README of the benchmark folder: the SHAPES0 layouts reproduce only
     # with each piece reflected (y -> -y); used as written, pieces overlap.
     from sheetgen.errors import GeometryBug
-    from sheetgen.nesting import verify
+    from sheetgen.production.nesting import verify
 
     inst = instances["shapes0"]
     for sol in inst.solutions:

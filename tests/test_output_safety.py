@@ -426,7 +426,7 @@ def test_core_geometry_raises_typed_errors():
     from sheetgen.errors import GeometryBug, ParameterError
     from sheetgen.geometry.joints import TabMissesSlot, fit_clearance_mm, slot_footprint
     from sheetgen.geometry.kerf import cut_outline
-    from sheetgen.part import Placement
+    from sheetgen.geometry.placement import Placement
 
     with pytest.raises(ParameterError, match="fit 'loose'"):
         fit_clearance_mm("loose")
@@ -442,7 +442,7 @@ def test_core_geometry_raises_typed_errors():
 
 
 def test_a_stray_value_error_is_one_line_and_exit_3(tmp_path, monkeypatch):
-    import sheetgen.kit as kit
+    import sheetgen.design.kit as kit
 
     def broken(spec):
         raise ValueError("an invariant of ours failed")

@@ -16,7 +16,6 @@ import subprocess
 import xml.etree.ElementTree as ET
 
 import numpy as np
-import pytest
 
 from sheetgen.mechanics import plots, tracking
 

@@ -23,10 +23,11 @@ from hypothesis import assume, given
 from hypothesis import strategies as st
 
 from sheetgen.commands.preflight import command
-from sheetgen.cutplan import LaserSettings, cut_plan_contours, plan_sheet
+from sheetgen.production.cutplan import LaserSettings, cut_plan_contours, plan_sheet
 from sheetgen.errors import InputFileError, ParameterError
-from sheetgen.io.dxf import Contour, dxf_bytes
-from sheetgen.preflight import parse_sheet, preflight_file
+from sheetgen.geometry.contour import Contour
+from sheetgen.io.dxf import dxf_bytes
+from sheetgen.production.preflight import parse_sheet, preflight_file
 
 CUT = {"layer": "CUT"}
 

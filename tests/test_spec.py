@@ -8,7 +8,7 @@ import tomllib
 import pytest
 
 from sheetgen.errors import InputFileError, ParameterError
-from sheetgen.spec import SCHEMA, load_spec, parse_override, reference_markdown, spec_from_dict
+from sheetgen.design.spec import SCHEMA, load_spec, parse_override, reference_markdown, spec_from_dict
 from tests.conftest import DEMO, PARAMS
 
 

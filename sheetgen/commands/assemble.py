@@ -45,9 +45,9 @@ def command(params: str, out_dir: str, as_json: bool, sweep_step_deg: float, ove
     through the tracking range, gear mesh, mass and CG."""
     from sheetgen.io.output import check_output_dir, staged_dir
     from sheetgen.io.step import write_step, write_svg
-    from sheetgen.kit import build_kit
+    from sheetgen.design.kit import build_kit
     from sheetgen.model3d import build_assembly, build_model, check_model
-    from sheetgen.spec import load_spec
+    from sheetgen.design.spec import load_spec
 
     start = time.perf_counter()
     check_output_dir(out_dir, into_existing=into_existing)  # refuse a bad target before the long work

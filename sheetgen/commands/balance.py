@@ -29,10 +29,10 @@ def command(params: str, overrides: tuple[str, ...], as_json: bool) -> None:
     Anything larger than a desk kit: wind and snow loads follow local codes
     (for example ASCE 7, EN 1991-1-4) and a licensed engineer.
     """
-    from sheetgen.kit import build_kit
+    from sheetgen.design.kit import build_kit
     from sheetgen.mechanics.check import balance_check, render_text
-    from sheetgen.solver import derived_lines, derived_values
-    from sheetgen.spec import load_spec
+    from sheetgen.design.solver import derived_lines, derived_values
+    from sheetgen.design.spec import load_spec
 
     spec = load_spec(params, overrides)
     kit = build_kit(spec)

@@ -37,7 +37,7 @@ def command(params, kits, out_dir, dxf_version, model, overrides, into_existing,
     from sheetgen.io.partfiles import write_part_files
     from sheetgen.io.report import render_report
     from sheetgen.io.sheets import write_sheets
-    from sheetgen.spec import demo_params_path, load_spec
+    from sheetgen.design.spec import demo_params_path, load_spec
 
     start = time.perf_counter()
     check_output_dir(out_dir, into_existing=into_existing)  # refuse a bad target before the long work
@@ -61,7 +61,7 @@ def command(params, kits, out_dir, dxf_version, model, overrides, into_existing,
         (tmp / "parts").mkdir()
         (tmp / "sheets").mkdir()
         write_part_files(build.kit, spec, tmp / "parts", dxf_version)
-        from sheetgen.cutplan import cut_plan_contours
+        from sheetgen.production.cutplan import cut_plan_contours
 
         write_sheets(tmp / "sheets", [r.sheet for r in build.sheets], build.nest.sheet_size_mm,
                      build.nest.margin_mm, [cut_plan_contours(r.plan) for r in build.sheets], dxf_version)

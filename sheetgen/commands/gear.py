@@ -55,8 +55,8 @@ def command(module_mm, teeth, pressure_angle_deg, shift, backlash_mm, bore_mm, b
     included; the kerf is compensated exactly (the cut flanks are involutes
     of the same base circle). The sizes printed are those of the finished
     gear."""
-    from sheetgen.gears import GearSpec, Hub, gear_blank
-    from sheetgen.geometry.involute import DEFAULT_CHORD_TOL_MM
+    from sheetgen.drive.gears import GearSpec, Hub, gear_blank
+    from sheetgen.drive.involute import DEFAULT_CHORD_TOL_MM
     from sheetgen.io.dxf import write_cut_dxf
     from sheetgen.io.output import check_output_file, staged_file
 

@@ -14,7 +14,7 @@ def command(nominal: float, measured: tuple[float, ...]) -> None:
     """Turn the caliper reading of the coupon's square into the kerf for the
     parameters. The square is drawn without compensation and comes out one
     kerf smaller, so kerf = nominal - measured (mean of the readings)."""
-    from sheetgen.coupon import kerf_from_measurement
+    from sheetgen.production.coupon import kerf_from_measurement
 
     kerf = kerf_from_measurement(nominal, list(measured))
     shown = f"{measured[0]:g}" if len(measured) == 1 else "mean(" + ", ".join(f"{m:g}" for m in measured) + ")"

@@ -94,8 +94,8 @@ def command(params, kits, extras, sheet, strip_width, rotations, spacing, margin
     from sheetgen.errors import GeometryBug
     from sheetgen.io.output import staged_dir
     from sheetgen.io.sheets import write_sheets
-    from sheetgen.nesting import nest, sheet_patterns, verify
-    from sheetgen.production import (
+    from sheetgen.production.nesting import nest, sheet_patterns, verify
+    from sheetgen.production.runs import (
         extra_items,
         kit_items,
         nest_summary,
@@ -107,8 +107,8 @@ def command(params, kits, extras, sheet, strip_width, rotations, spacing, margin
     angles = parse_rotations(rotations) if rotations is not None else None
     items, sources = [], []
     if params is not None:
-        from sheetgen.kit import build_kit
-        from sheetgen.spec import load_spec
+        from sheetgen.design.kit import build_kit
+        from sheetgen.design.spec import load_spec
 
         spec = load_spec(params, overrides)
         kerf = spec.laser.kerf_mm if kerf is None else kerf
@@ -174,7 +174,7 @@ def command(params, kits, extras, sheet, strip_width, rotations, spacing, margin
     size = result.sheet_size_mm
     with staged_dir(out_dir) as tmp:
         files = write_sheets(tmp, sheets, size, margin, patterns=sheet_patterns(result), jobs=jobs)
-    from sheetgen.nesting.engine import EFFORT_PER_SECOND
+    from sheetgen.production.nesting.engine import EFFORT_PER_SECOND
 
     used_effort = effort if effort is not None else round(time_limit * EFFORT_PER_SECOND, 6)
     summary = nest_summary(result) | {"kerf_mm": kerf, "seed": seed, "effort": used_effort, "time_limit_s": time_limit,

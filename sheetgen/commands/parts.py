@@ -21,8 +21,8 @@ def command(params, out_dir, dxf_version, overrides, into_existing):
     """Write one kerf-compensated DXF and SVG per distinct part of the kit, and manifest.json."""
     from sheetgen.io.output import check_output_dir, staged_dir
     from sheetgen.io.partfiles import write_part_files
-    from sheetgen.kit import build_kit
-    from sheetgen.spec import load_spec
+    from sheetgen.design.kit import build_kit
+    from sheetgen.design.spec import load_spec
 
     start = time.perf_counter()
     check_output_dir(out_dir, into_existing=into_existing)  # refuse a bad target before the long work

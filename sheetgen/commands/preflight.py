@@ -8,7 +8,7 @@ from sheetgen.errors import ParameterError
 
 
 def _kerf_range() -> tuple[float, float]:
-    from sheetgen.spec import SCHEMA_BY_PATH
+    from sheetgen.design.spec import SCHEMA_BY_PATH
 
     key = SCHEMA_BY_PATH["laser.kerf"]
     return key.lo, key.hi
@@ -28,7 +28,7 @@ def command(file: str, sheet: str | None, kerf: float | None, layer: str | None)
     than the kerf can cut, missing units, nothing to cut, a byte-order mark.
     Exit code 1 when there is any, 0 when the file is clean; 2 when the file
     cannot be read or holds more than 250,000 entities (the ceiling)."""
-    from sheetgen.preflight import parse_sheet, preflight_file
+    from sheetgen.production.preflight import parse_sheet, preflight_file
 
     sheet_mm = parse_sheet(sheet) if sheet is not None else None
     if kerf is not None:

@@ -29,7 +29,7 @@ import numpy as np
 from shapely.geometry import MultiPoint, Polygon
 
 from sheetgen.errors import GeometryBug, ParameterError
-from sheetgen.part import Placement
+from sheetgen.geometry.placement import Placement
 
 
 

@@ -15,9 +15,10 @@ from shapely.geometry import Polygon
 
 from sheetgen.errors import GeometryBug
 from sheetgen.geometry.kerf import cut_outline
-from sheetgen.io.dxf import circles_of, dxf_bytes, polygon_contours
+from sheetgen.geometry.contour import circles_of, polygon_contours
+from sheetgen.io.dxf import dxf_bytes
 from sheetgen.io.svg import svg_document
-from sheetgen.part import Mark, Part
+from sheetgen.design.part import Mark, Part
 
 
 @dataclass(frozen=True)

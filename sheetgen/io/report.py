@@ -133,7 +133,7 @@ def render_report(build, assembly_svg: str | None = None) -> str:
 
 def _derived(build):
     """Derived values beside the inputs they follow from."""
-    from sheetgen.solver import rule_doc
+    from sheetgen.design.solver import rule_doc
 
     rows = build.summary.get("derived", {})
     if not rows:

@@ -9,9 +9,10 @@ from __future__ import annotations
 from collections.abc import Sequence
 from pathlib import Path
 
-from sheetgen.io.dxf import Contour, dxf_bytes
+from sheetgen.geometry.contour import Contour
+from sheetgen.io.dxf import dxf_bytes
 from sheetgen.io.svg import svg_document
-from sheetgen.production import PlacedSheet
+from sheetgen.production.runs import PlacedSheet
 
 
 def sheet_name(index: int) -> str:
@@ -53,7 +54,7 @@ def write_sheets(out_dir: Path, sheets: Sequence[PlacedSheet], size_mm: tuple[fl
 
     ``patterns`` groups sheet positions (0-based) that are the same layout;
     each group is drawn once. Without it, sheets that share one contours tuple
-    (as :func:`sheetgen.production.placed_sheets` gives the sheets of one
+    (as :func:`sheetgen.production.runs.placed_sheets` gives the sheets of one
     pattern) are one group; their ordered contours must then be the same."""
     if patterns is not None:
         groups = [tuple(g) for g in patterns]

@@ -20,14 +20,14 @@ from shapely.ops import unary_union
 
 from sheetgen.numbers import sig
 from sheetgen.errors import ParameterError
-from sheetgen.gears import LEWIS_Y_TABLE
+from sheetgen.mechanics.teeth import LEWIS_Y_TABLE
 from sheetgen.mechanics import loads, solar, tracking
 from sheetgen.mechanics.drive import DriveTime, drive_time
 from sheetgen.mechanics.inertia import frame_inertia_kgm2
 from sheetgen.mechanics.pulse import AxleLoad, Motor
 from sheetgen.mechanics.massprops import Counterweight, MassProperties, mass_properties, suggest_counterweight
 from sheetgen.mechanics.materials import sheet_material
-from sheetgen.part import Kit
+from sheetgen.design.part import Kit
 
 # A polar axle rests its weight's component along the axle on a collar or
 # spacer face; we take that face's mean friction radius as one axle diameter

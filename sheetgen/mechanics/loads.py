@@ -30,7 +30,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from sheetgen.gears import lewis_stress_MPa
+from sheetgen.mechanics.teeth import lewis_stress_MPa
 
 G_M_S2 = 9.80665  # standard acceleration of gravity (CGPM 1901; ISO 80000-3)
 AIR_DENSITY_KG_M3 = 1.225  # ISA sea level, ISO 2533

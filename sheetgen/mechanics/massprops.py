@@ -24,7 +24,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from sheetgen.mechanics.materials import sheet_material
-from sheetgen.part import Component, Kit, Part
+from sheetgen.design.part import Component, Kit, Part
 
 _MM3_TO_M3 = 1e-9
 
@@ -183,7 +183,7 @@ COUNTERWEIGHT_ARM_STEP_MM = 1.0
 
 def frame_reach_mm(kit: Kit) -> float:
     """The turning frame's largest distance from the axle (its sweep radius)."""
-    from sheetgen.geometry.sweep import kit_silhouettes
+    from sheetgen.design.clearance import kit_silhouettes
 
     best = 0.0
     for s in kit_silhouettes(kit):
@@ -197,7 +197,7 @@ def _bar(mass_kg: float, centre_yz: tuple[float, float], x_mm: float):
     """Silhouette of the counterweight bar: a disc in (y, z), its length along x."""
     from shapely.geometry import Point
 
-    from sheetgen.geometry.sweep import Silhouette
+    from sheetgen.design.clearance import Silhouette
     from sheetgen.mechanics.materials import rod_material
 
     r = COUNTERWEIGHT_DIAMETER_MM / 2
@@ -211,7 +211,7 @@ def _sunny_sides(kit: Kit):
     up, where a weight would shade it or sit in it."""
     from shapely.geometry import box as rect
 
-    from sheetgen.geometry.sweep import Silhouette
+    from sheetgen.design.clearance import Silhouette
 
     out = []
     for c in kit.components:
@@ -243,7 +243,7 @@ def suggest_counterweight(kit: Kit, mp: MassProperties, travel_deg: tuple[float,
     as the frame's clearance check) and does not run into the turning parts
     or the axle (it may touch them). The farther out, the lighter it is. Its
     bracket to the frame is the builder's to fit."""
-    from sheetgen.geometry.sweep import kit_silhouettes, sweep_clearance
+    from sheetgen.design.clearance import kit_silhouettes, sweep_clearance
 
     r = mp.unbalance_radius_mm
     if r == 0.0:

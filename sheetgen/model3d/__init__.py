@@ -46,10 +46,10 @@ What the checks call what:
   washers: they turn in place, and their gaps are measured at rest), against
   the fixed bodies, at every angle of the tracking range (solar module) in
   steps of at most MAX_SWEEP_STEP_DEG; the wheel and its pinion
-  (sheetgen.kit.MESHING) are rolled together instead, the pinion turning
+  (sheetgen.design.kit.MESHING) are rolled together instead, the pinion turning
   z_wheel / z_pinion times as far the other way;
 * frame clearance: part against part where their x ranges overlap, which is
-  what frame.clearance asks of the turning frame (and what sheetgen.kit checks
+  what frame.clearance asks of the turning frame (and what sheetgen.design.kit checks
   in 2D);
 * mass: parts weigh their solid's volume x the sheet density, components
   their given mass; the turning assembly's mass and CG must match the balance

@@ -14,8 +14,9 @@ from shapely.geometry import MultiPoint, Polygon
 
 from sheetgen.errors import GeometryBug, ParameterError
 from sheetgen.geometry.shapes import GRID_MM, disc, rect
-from sheetgen.kit import MESHING
-from sheetgen.part import Component, Kit, Placement, place
+from sheetgen.design.kit import MESHING
+from sheetgen.design.part import Component, Kit
+from sheetgen.geometry.placement import Placement, place
 
 
 CONTACT_TOL_MM = 1e-3  # closer than this counts as touching

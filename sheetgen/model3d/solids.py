@@ -13,7 +13,8 @@ from typing import Any
 import numpy as np
 
 from sheetgen.errors import GeometryBug
-from sheetgen.part import Kit, Placement
+from sheetgen.design.part import Kit
+from sheetgen.geometry.placement import Placement
 from sheetgen.model3d.bodies import Body, Prism, model_bodies
 
 

@@ -11,7 +11,7 @@ import numpy as np
 import shapely
 from shapely import affinity
 
-from sheetgen.kit import MESHING
+from sheetgen.design.kit import MESHING
 from sheetgen.model3d.bodies import CLOSEST_PAIRS, CONTACT_TOL_MM, SHARED_VOLUME_TOL_MM3, _x_gap, _x_overlap, turns_in_place
 from sheetgen.model3d.measures import _Measures, distance_bound_mm
 from sheetgen.model3d.records import Clearance, Collision, Touch
@@ -139,7 +139,7 @@ def _sweep(model: Model, meas: _Measures, angles: np.ndarray):
 
     top = closest(range(npairs), CLOSEST_PAIRS)
     # the frame over the fixed frame, as frame.clearance means it: part against part,
-    # where their x ranges overlap (the same pairs sheetgen.kit checks in 2D)
+    # where their x ranges overlap (the same pairs sheetgen.design.kit checks in 2D)
     over = [n for n in range(npairs) if bodies[tab.pairs[n][0]].kind == bodies[tab.pairs[n][1]].kind == "part"
             and _x_overlap(bodies[tab.pairs[n][0]], bodies[tab.pairs[n][1]]) > 1e-9]
     frame = closest(over, 1)

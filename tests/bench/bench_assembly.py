@@ -22,9 +22,9 @@ def main() -> None:
 
     print(f"loading cadquery: {time.perf_counter() - t:.2f} s\n")
     from sheetgen.io.step import write_step, write_svg
-    from sheetgen.kit import build_kit
+    from sheetgen.design.kit import build_kit
     from sheetgen.model3d import build_assembly, build_model, check_model
-    from sheetgen.spec import load_spec
+    from sheetgen.design.spec import load_spec
 
     stages = ("build", "interference", "connection", "tabs", "sweep", "mesh", "mass")
     head = f"{'kit':22s} {'solids':>6s} " + " ".join(f"{s:>12s}" for s in stages) + \

@@ -17,8 +17,8 @@ import time
 
 from shapely.geometry import Point, box
 
-from sheetgen.cutplan import LaserSettings, plan_sheet
-from sheetgen.io.dxf import Contour, polygon_contours
+from sheetgen.production.cutplan import LaserSettings, plan_sheet
+from sheetgen.geometry.contour import Contour, polygon_contours
 from tests.test_cutplan import _exact_shortest  # the exhaustive reference of the tests
 
 SETTINGS = LaserSettings(cut_speed_mm_s=20.0, rapid_speed_mm_s=200.0, pierce_time_s=0.5)

@@ -29,8 +29,8 @@ from pathlib import Path
 ROOT = Path(__file__).resolve().parents[2]
 sys.path.insert(0, str(ROOT))
 
-from sheetgen.nesting import nest, verify
-from sheetgen.nesting.esicup import read_instance
+from sheetgen.production.nesting import nest, verify
+from sheetgen.production.nesting.esicup import read_instance
 
 ESICUP = ROOT / "tests" / "data" / "esicup"
 FILES = {"SHAPES0": "shapes/shapes0.xml", "SHAPES1": "shapes/shapes1.xml", "SWIM": "swim/swim.xml",

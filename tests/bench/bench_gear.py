@@ -8,7 +8,7 @@ from __future__ import annotations
 
 import time
 
-from sheetgen.gears import GearSpec, Hub, gear_blank, gear_pair
+from sheetgen.drive.gears import GearSpec, Hub, gear_blank, gear_pair
 
 
 def best_of(fn, repeat: int = 7) -> tuple[float, object]:

@@ -4,7 +4,7 @@ Run:  python tests/bench/bench_kits.py [--kits 1,5,20,50,200] [--time 5] [--effo
 
 For each kit count: the parts of that many kits (cut outlines with the demo
 kerf, the demo spacing and margin) nested on the demo sheet. Prints the parts,
-the sheets used, the honest lower bound (sheetgen.nesting.bound) and the plain
+the sheets used, the honest lower bound (sheetgen.production.nesting.bound) and the plain
 area ratio, the fill of the sheets but the last (min, max, mean), the fill and
 remnant of the last sheet, the distinct patterns, what ended the search, and
 wall and CPU time. Every layout is checked with ``verify``.
@@ -24,10 +24,10 @@ from pathlib import Path
 ROOT = Path(__file__).resolve().parents[2]
 sys.path.insert(0, str(ROOT))
 
-from sheetgen.kit import build_kit
-from sheetgen.nesting import nest, sheet_patterns, verify
-from sheetgen.production import kit_items
-from sheetgen.spec import load_spec
+from sheetgen.design.kit import build_kit
+from sheetgen.production.nesting import nest, sheet_patterns, verify
+from sheetgen.production.runs import kit_items
+from sheetgen.design.spec import load_spec
 
 
 def _cpu() -> float:

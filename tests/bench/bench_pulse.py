@@ -24,11 +24,11 @@ def best_of(fn, repeat: int = 3):
 
 
 def main() -> None:
-    from sheetgen.kit import build_kit
+    from sheetgen.design.kit import build_kit
     from sheetgen.mechanics import drive as drv
     from sheetgen.mechanics.check import balance_check
     from sheetgen.mechanics.pulse import Drive, Motor
-    from sheetgen.spec import load_spec
+    from sheetgen.design.spec import load_spec
 
     params = sys.argv[1] if len(sys.argv) > 1 else str(ROOT / "params" / "demo.toml")
     spec = load_spec(params, ())

@@ -24,10 +24,10 @@ ROOT = Path(__file__).resolve().parents[2]
 CHILD = r"""
 import json, resource, sys, time
 sys.path.insert(0, {root!r})
-from sheetgen.kit import build_kit
-from sheetgen.nesting import nest, sheet_patterns, verify
-from sheetgen.production import kit_items
-from sheetgen.spec import load_spec
+from sheetgen.design.kit import build_kit
+from sheetgen.production.nesting import nest, sheet_patterns, verify
+from sheetgen.production.runs import kit_items
+from sheetgen.design.spec import load_spec
 
 spec = load_spec({params!r})
 items, _ = kit_items(build_kit(spec), spec.laser.kerf_mm, {kits})

@@ -1,0 +1,1 @@
+"""Design: the typed parameters, the layout solver, the part model, the part families and the kit."""

@@ -1,0 +1,238 @@
+"""Spec -> Kit: every part of one tracker kit, joined, placed and verified.
+
+The part factories (sheetgen/design/parts) give plain outlines, holes, placements and
+named edges. Here the JOINTS table grows tabs on those edges and cuts each tab's
+footprint as a slot in its mating part, the labels are placed, the kit is
+verified (valid outlines, every part fits the sheet, the turning frame clears
+the fixed parts through its travel) and the non-sheet components (panel, axle,
+motor, rotating masses) are added.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import math
+
+import shapely
+from shapely.geometry import Polygon
+from shapely.ops import polylabel, unary_union
+
+from sheetgen.errors import GeometryBug, ParameterError, SheetTooSmall
+from sheetgen.geometry.joints import TabMissesSlot, fit_slot, slot_footprint, tab_layout, tab_rects
+from sheetgen.geometry.kerf import cut_outline
+from sheetgen.geometry.shapes import clean
+from sheetgen.design.clearance import kit_silhouettes, sweep_clearance
+from sheetgen.design.layout import Layout, compute_layout
+from sheetgen.design.part import LAYER_LABEL, Component, Joint, Kit, Mark, Part
+from sheetgen.design.parts import Blank, part_families
+
+# (tab part, its edge, slot part): a tab-and-slot joint along that edge.
+JOINTS = (
+    ("axle-support", "foot", "base"),
+    ("stretcher", "bottom", "base"),
+    ("stretcher", "end+", "axle-support"),
+    ("stretcher", "end-", "axle-support"),
+    ("motor-mount", "foot", "base"),
+    ("rib", "top", "tray"),
+)
+# Turning and fixed parts that are meant to touch.
+MESHING = frozenset({("wheel", "pinion")})
+LABEL_MAX_MM = 4.0
+LABEL_MIN_MM = 1.5
+
+
+def build_kit(spec, *, check_clearance: bool = True) -> Kit:
+    """All parts and components of one kit, in the kit frame at rotation 0.
+
+    Raises ParameterError when a part does not fit the sheet or the turning
+    frame would come closer than frame.clearance to a fixed part.
+    """
+    from sheetgen.design.parts.drive import drive_pair
+
+    drive = drive_pair(spec)
+    layout = compute_layout(spec, drive.centre_distance_mm)
+    blanks = {b.name: b for b in (factory(spec, layout, drive) for factory in part_families())}
+    tabs, slots, joints = _joints(spec, blanks)
+    parts = tuple(_make_part(spec, b, tabs.get(b.name, []), slots.get(b.name, [])) for b in blanks.values())
+    kit = Kit(
+        parts=parts,
+        components=_components(spec, layout),
+        joints=tuple(joints),
+        figures=_figures(spec, layout, drive),
+        drive=drive,
+    )
+    _check_fits_sheet(spec, kit)
+    if check_clearance:
+        _check_clearance(spec, kit)
+    return kit
+
+
+def travel_deg(spec) -> tuple[float, float]:
+    """The rotation range the frame must clear: the travel limit either side of rest."""
+    return (-spec.site.travel_limit_deg, spec.site.travel_limit_deg)
+
+
+def frame_sweep(kit: Kit, angles_deg: tuple[float, float], step_deg: float = 1.0):
+    """Least clearance between the turning frame and the fixed parts (y-z projection)."""
+    return sweep_clearance(kit_silhouettes(kit), angles_deg, step_deg, MESHING)
+
+
+# ---------------------------------------------------------------------------
+
+
+def _joints(spec, blanks: dict[str, Blank]):
+    t = spec.sheet.thickness_mm
+    tabs: dict[str, list[Polygon]] = {}
+    received: dict[str, list[list[Polygon]]] = {}  # slot part -> per instance footprints
+    joints = []
+    for tab_name, edge_name, slot_name in JOINTS:
+        tb, sb = blanks[tab_name], blanks[slot_name]
+        edge = tb.edge(edge_name)
+        centres, width = tab_layout(edge.length_mm, t, spec.joints.tab_width_mm)
+        rects = tab_rects(edge, centres, width, t)
+        tabs.setdefault(tab_name, []).extend(rects)
+        per_instance = received.setdefault(slot_name, [[] for _ in sb.placements])
+        own = []  # this joint's slots
+        for tp in tb.placements:
+            for r in rects:
+                hits = 0
+                for k, sp in enumerate(sb.placements):
+                    try:
+                        fp = slot_footprint(r, t, tp, sp, t)
+                    except TabMissesSlot:
+                        continue
+                    if not sb.outline.contains(fp):
+                        raise GeometryBug(f"joint {tab_name}.{edge_name} -> {slot_name}: slot at "
+                                          f"({fp.centroid.x:.1f}, {fp.centroid.y:.1f}) leaves the {slot_name} outline")
+                    per_instance[k].append(fp)
+                    own.append(fp)
+                    hits += 1
+                if hits == 0:
+                    raise GeometryBug(f"joint {tab_name}.{edge_name} -> {slot_name}: a tab reaches no {slot_name}")
+        x0, y0, x1, y1 = own[0].bounds
+        joints.append(Joint(tab_name, slot_name, len(rects) * len(tb.placements), width,
+                            max(x1 - x0, y1 - y0), min(x1 - x0, y1 - y0), t, spec.joints.fit))
+    slots: dict[str, list[Polygon]] = {}
+    for slot_name, per_instance in received.items():
+        # every instance of a part is cut from the same outline, so all must need the same slots
+        keys = [sorted(tuple(round(v, 4) for v in p.bounds) for p in prints) for prints in per_instance]
+        if any(k != keys[0] for k in keys):
+            raise GeometryBug(f"instances of {slot_name} would need different slots")
+        slots[slot_name] = per_instance[0]
+    return tabs, slots, joints
+
+
+def _label(name: str, outline: Polygon) -> tuple[Mark, ...]:
+    p = polylabel(outline, tolerance=0.25)
+    room = outline.boundary.distance(p)
+    height = min(LABEL_MAX_MM, 0.7 * room, room / (0.3 * len(name)))
+    if height < LABEL_MIN_MM:
+        return ()
+    return (Mark(LAYER_LABEL, "text", ((round(p.x, 3), round(p.y, 3)),), name, round(height, 2)),)
+
+
+def _make_part(spec, blank: Blank, tabs: list[Polygon], slots: list[Polygon]) -> Part:
+    body = unary_union([blank.outline, *tabs])
+    nominal_voids = [h.nominal for h in blank.holes] + slots
+    fit_voids = [h.fit for h in blank.holes] + [fit_slot(s, spec.joints.fit) for s in slots]
+    outline = clean(body.difference(unary_union(nominal_voids)) if nominal_voids else body, blank.name)
+    fit = clean(body.difference(unary_union(fit_voids)) if fit_voids else body, blank.name)
+    if blank.rotations_deg is not None:
+        rotations = blank.rotations_deg
+    else:
+        rotations = (0.0, 180.0) if spec.sheet.grain else (0.0, 90.0, 180.0, 270.0)
+    if spec.sheet.grain:
+        rotations = tuple(r for r in rotations if r % 180 == 0)
+    return Part(
+        name=blank.name,
+        outline=outline,
+        thickness_mm=spec.sheet.thickness_mm,
+        material=spec.sheet.material,
+        qty=len(blank.placements),
+        placements=blank.placements,
+        rotations_deg=rotations,
+        marks=_label(blank.name, outline) + blank.guides,
+        circles=tuple(h.circle for h in blank.holes if h.circle is not None),
+        fit_outline=fit,
+        description=blank.description,
+    )
+
+
+def _components(spec, L: Layout) -> tuple[Component, ...]:
+    from sheetgen.mechanics.materials import axle_mass_kg
+
+    p, m = spec.panel, spec.motor
+    length = L.axle_x1_mm - L.axle_x0_mm
+    out = [
+        Component("panel", p.mass_kg, "box", (0.0, 0.0, L.panel_z_mm + p.thickness_mm / 2),
+                  (p.width_mm, p.height_mm, p.thickness_mm), rotating=True),
+        Component("axle", axle_mass_kg(spec.axle.material, spec.axle.diameter_mm, length), "cylinder_x",
+                  ((L.axle_x0_mm + L.axle_x1_mm) / 2, 0.0, 0.0), (length, spec.axle.diameter_mm, spec.axle.diameter_mm),
+                  rotating=True),
+        Component("motor", m.mass_kg, "box",
+                  (L.mount_x_mm + L.t_mm + m.body_length_mm / 2, L.pinion_y_mm, L.pinion_z_mm),
+                  (m.body_length_mm, m.body_width_mm, m.body_height_mm), rotating=False),
+    ]
+    out += [Component(r.name, r.mass_kg, "point", r.position_mm, rotating=True) for r in spec.rotating_masses]
+    return tuple(out)
+
+
+def _figures(spec, L: Layout, drive) -> tuple[tuple[str, float], ...]:
+    return (
+        ("axle_height_mm", L.axle_height_mm),
+        ("centre_distance_mm", drive.centre_distance_mm),
+        ("support_spacing_mm", 2 * L.support_x_mm),
+        ("axial_play_mm", L.axial_play_mm),
+        ("wheel_spacers", L.wheel_spacers),
+        ("mount_gap_mm", L.mount_gap_mm),
+        ("shaft_end_gap_mm", L.shaft_end_x_mm - (L.support_x_mm + L.t_mm)),
+        ("tray_z_mm", L.tray_z_mm),
+        ("panel_z_mm", L.panel_z_mm),
+        ("base_length_mm", L.base_x1_mm - L.base_x0_mm),
+        ("base_width_mm", 2 * L.base_half_y_mm),
+    )
+
+
+def _check_fits_sheet(spec, kit: Kit) -> None:
+    s = spec.sheet
+    uw, uh = s.width_mm - 2 * s.margin_mm, s.height_mm - 2 * s.margin_mm
+    for part in kit.parts:
+        cut = cut_outline(part.fit_outline, spec.laser.kerf_mm)
+        ok = False
+        for angle in part.rotations_deg:
+            x0, y0, x1, y1 = shapely.affinity.rotate(cut, angle, origin=(0, 0)).bounds
+            if x1 - x0 <= uw + 1e-9 and y1 - y0 <= uh + 1e-9:
+                ok = True
+                break
+        if not ok:
+            x0, y0, x1, y1 = cut.bounds
+            raise SheetTooSmall(
+                f"part {part.name} ({x1 - x0:.1f} x {y1 - y0:.1f} mm) does not fit the usable sheet "
+                f"{uw:g} x {uh:g} mm (sheet.width x sheet.height less 2 x sheet.margin)", part.name)
+
+
+def _check_clearance(spec, kit: Kit) -> None:
+    need = spec.frame.clearance_mm
+    first = frame_sweep(kit, travel_deg(spec))
+    if first.min_clearance_mm >= need - 1e-9:
+        return
+    # find the least axle height that clears, to say what would be allowed
+    height, res = spec.axle.height_mm, first
+    for _ in range(60):
+        height = math.ceil((height + max(need - res.min_clearance_mm, 0.5)) * 2) / 2
+        trial = dataclasses.replace(spec, axle=dataclasses.replace(spec.axle, height_mm=height))
+        try:
+            res = frame_sweep(build_kit(trial, check_clearance=False), travel_deg(spec))
+        except ParameterError:
+            continue
+        if res.min_clearance_mm >= need - 1e-9:
+            break
+    raise ParameterError(
+        f"axle.height = {spec.axle.height_mm:g}: the turning {_name(first.turning)} comes within "
+        f"{first.min_clearance_mm:.1f} mm of the fixed {_name(first.fixed)} at {first.angle_deg:g} deg "
+        f"(frame.clearance = {need:g} mm through +-{spec.site.travel_limit_deg:g} deg); "
+        f"must be at least {height:g} mm")
+
+
+def _name(instance: str) -> str:
+    return instance.replace("#", " #")

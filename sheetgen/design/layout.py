@@ -1,0 +1,182 @@
+"""Where everything sits in the kit frame: one pure function of the Spec.
+
+The kit frame has its origin on the axle axis, x along the axle, z up when the
+panel faces the zenith. Seen along +x the chassis stacks up as:
+
+    base plate (top face at z = -axle.height)
+    two axle supports (plates across the axle) standing on the base
+    two stretchers between the supports, low down, at +-y, bracing them
+    the turning frame between the supports: two ribs on the axle, the tray on
+      the ribs, the panel in the rim layer(s) on the tray, the bezel on top
+    outboard of the +x support: drive.wheel_spacers spacers, the wheel
+      (drive.layers thick), a gap of drive.mount_gap, then the motor mount with
+      the motor behind it, its pinion meshing with the wheel
+
+All the numbers the part factories share are computed here, once, from a
+resolved Spec (every derived key a number: see sheetgen/design/solver.py, which
+chooses them). Values pinned by hand that cannot work raise ParameterError.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+from sheetgen.errors import ParameterError
+
+PANEL_CLEARANCE_MM = 0.3  # per side, panel in its rim opening (common practice for a drop-in fit)
+AXIAL_PLAY_MIN_MM = 0.5  # least end float of the axle between the supports
+MOUNT_GAP_MM = 1.0  # least gap, gear face to motor mount
+SHAFT_END_GAP_MM = 1.0  # least gap, motor shaft end to the drive-side support's face
+PINION_GRIP_MIN_MM = 2.0  # least length of shaft inside the glued pinion stack ...
+PINION_GRIP_SHEETS = 0.5  # ... and at least this share of one sheet (our rule)
+
+
+def pinion_grip_mm(t_mm: float, layers: int) -> float:
+    """Least length of motor shaft the pinion stack must grip: the whole stack
+    when it is short, else max(2 mm, half a sheet); the layers are glued, so the
+    teeth engage on the full face width either way."""
+    return min(layers * t_mm, max(PINION_GRIP_MIN_MM, PINION_GRIP_SHEETS * t_mm))
+ANCHOR_HOLE_MM = 4.5  # base holes to screw the kit down (M4 clearance, ISO 273 medium)
+
+
+@dataclass(frozen=True)
+class Layout:
+    t_mm: float  # sheet thickness
+    axle_d_mm: float
+    axle_height_mm: float
+    # turning frame
+    tray_half_x_mm: float
+    tray_half_y_mm: float
+    window_half_x_mm: float
+    window_half_y_mm: float
+    rim_layers: int
+    tray_z_mm: float  # underside of the tray = top edge of the ribs
+    rib_x_mm: float  # centre plane of the +x rib (the other at -x)
+    rib_half_y_mm: float
+    hub_r_mm: float  # material radius around the axle in ribs
+    bolt_points: tuple[tuple[float, float], ...]
+    # fixed frame
+    support_x_mm: float  # inner face of the +x support (the other at -x)
+    support_half_y_mm: float  # foot half width
+    support_hub_r_mm: float
+    foot_h_mm: float
+    stretcher_y_mm: float  # centre plane of the +y stretcher
+    stretcher_h_mm: float
+    spacers_per_side: int
+    axial_play_mm: float
+    # drive
+    wheel_spacers: int  # spacers between the +x support and the wheel
+    wheel_x_mm: float  # inner face of the wheel stack
+    gear_layers: int
+    mount_gap_mm: float  # gear stack's outer face to the motor mount
+    mount_x_mm: float  # inner face of the motor mount
+    shaft_end_x_mm: float  # where the motor shaft ends (toward the +x support)
+    pinion_y_mm: float
+    pinion_z_mm: float
+    centre_distance_mm: float
+    # base
+    base_x0_mm: float
+    base_x1_mm: float
+    base_half_y_mm: float
+    # axle rod
+    axle_x0_mm: float
+    axle_x1_mm: float
+
+    @property
+    def panel_z_mm(self) -> float:
+        return self.tray_z_mm + self.t_mm
+
+    @property
+    def base_top_z_mm(self) -> float:
+        return -self.axle_height_mm
+
+
+def compute_layout(spec, centre_distance_mm: float) -> Layout:
+    t = spec.sheet.thickness_mm
+    W, Hp = spec.panel.width_mm, spec.panel.height_mm
+    b, ledge = spec.frame.border_mm, spec.frame.ledge_mm
+    d = spec.axle.diameter_mm
+    H = spec.axle.height_mm
+
+    if b + ledge < t + 3:
+        raise ParameterError(
+            f"frame.border + frame.ledge = {b + ledge:g} mm: must be at least sheet.thickness + 3 = {t + 3:g} mm "
+            "so the rib slots keep material around them")
+    hub_r = d / 2 + max(2.5 * t, 0.75 * d, 5.0)
+    tray_z = hub_r
+    rim_layers = max(1, math.ceil(spec.panel.thickness_mm / t - 1e-9))
+    rib_x = W / 2 + (b - ledge) / 2
+    rib_half_y = Hp / 2 + b - 2.0
+    bolt = spec.frame.bolt_diameter_mm
+    bolt_points = ()
+    if bolt > 0:
+        yb = Hp / 2 + b / 2
+        bolt_points = tuple((sx * W / 4, sy * yb) for sx in (-1, 1) for sy in (-1, 1))
+
+    support_x = W / 2 + b + spec.frame.clearance_mm
+    span = support_x - (rib_x + t / 2)  # rib outer face to support inner face
+    spacers = max(0, math.floor((span - AXIAL_PLAY_MIN_MM) / t))
+    play = span - spacers * t
+    support_hub_r = d / 2 + max(2.5 * t, 6.0)
+    stretcher_h = min(max(0.3 * H, 12.0), 40.0)
+    foot_h = stretcher_h + max(2 * t, 6.0)
+    support_half_y = max(0.5 * H, support_hub_r + 10.0, 30.0, Hp / 2 * 0.6)
+    stretcher_y = support_half_y - t / 2 - max(2 * t, 6.0)
+
+    layers = spec.drive.layers
+    n_sp = spec.drive.wheel_spacers
+    gap = spec.drive.mount_gap_mm
+    wheel_x = support_x + t + n_sp * t  # support, then the spacer stack
+    mount_x = wheel_x + layers * t + gap
+    shaft_end = mount_x + t - spec.motor.shaft_length_mm
+    grip = pinion_grip_mm(t, layers)
+    if shaft_end > wheel_x + layers * t - grip + 1e-9:
+        raise ParameterError(
+            f"motor.shaft_length = {spec.motor.shaft_length_mm:g}: grips only "
+            f"{max(0.0, wheel_x + layers * t - shaft_end):.3g} mm of the pinion stack (at least {grip:g} mm); "
+            f"with drive.mount_gap = {gap:g} and drive.layers = {layers} it must be at least {t + gap + grip:g} mm "
+            "(or leave drive.mount_gap at \"auto\")")
+    if shaft_end < support_x + t + SHAFT_END_GAP_MM - 1e-9:
+        raise ParameterError(
+            f"motor.shaft_length = {spec.motor.shaft_length_mm:g}: would reach within {SHAFT_END_GAP_MM:g} mm of the "
+            f"drive-side axle support with drive.wheel_spacers = {n_sp} and drive.mount_gap = {gap:g}; must be at "
+            f"most {mount_x - support_x - SHAFT_END_GAP_MM:g} mm (or leave those keys at \"auto\")")
+    a = math.radians(spec.drive.pinion_angle_deg)
+    pinion_y = centre_distance_mm * math.sin(a)
+    pinion_z = -centre_distance_mm * math.cos(a)
+    floor = motor_floor_height_mm(spec, centre_distance_mm)
+    if H < floor - 1e-9:
+        raise ParameterError(
+            f"axle.height = {H:g}: the motor body would reach the base; must be at least "
+            f"{math.ceil(floor * 10) / 10:g} mm (or turn the pinion with drive.pinion_angle)")
+    base_half_y = max(support_half_y, abs(pinion_y) + spec.motor.body_width_mm / 2 + 4.0) + 10.0
+    base_x0 = -(support_x + 2 * t) - 10.0
+    base_x1 = mount_x + t + spec.motor.body_length_mm + 5.0
+    return Layout(
+        t_mm=t, axle_d_mm=d, axle_height_mm=H,
+        tray_half_x_mm=W / 2 + b, tray_half_y_mm=Hp / 2 + b,
+        window_half_x_mm=W / 2 - ledge, window_half_y_mm=Hp / 2 - ledge,
+        rim_layers=rim_layers, tray_z_mm=tray_z, rib_x_mm=rib_x, rib_half_y_mm=rib_half_y, hub_r_mm=hub_r,
+        bolt_points=bolt_points,
+        support_x_mm=support_x, support_half_y_mm=support_half_y, support_hub_r_mm=support_hub_r,
+        foot_h_mm=foot_h, stretcher_y_mm=stretcher_y, stretcher_h_mm=stretcher_h,
+        spacers_per_side=spacers, axial_play_mm=play,
+        wheel_spacers=n_sp, wheel_x_mm=wheel_x, gear_layers=layers, mount_gap_mm=gap, mount_x_mm=mount_x,
+        shaft_end_x_mm=shaft_end,
+        pinion_y_mm=pinion_y, pinion_z_mm=pinion_z, centre_distance_mm=centre_distance_mm,
+        base_x0_mm=base_x0, base_x1_mm=base_x1, base_half_y_mm=base_half_y,
+        axle_x0_mm=-(support_x + 2 * t), axle_x1_mm=wheel_x + layers * t,
+    )
+
+
+MOTOR_BODY_MARGIN_MM = 4.0  # mount plate material round the motor body
+MOTOR_BASE_GAP_MM = 1.0  # least gap, mount plate to the base under the motor
+
+
+def motor_floor_height_mm(spec, centre_distance_mm: float) -> float:
+    """Least axle height that keeps the motor mount's plate round the motor body
+    clear of the base: the pinion sits centre_distance from the axle, toward
+    drive.pinion_angle from straight down."""
+    pinion_z = -centre_distance_mm * math.cos(math.radians(spec.drive.pinion_angle_deg))
+    return -(pinion_z - spec.motor.body_height_mm / 2 - MOTOR_BODY_MARGIN_MM) + MOTOR_BASE_GAP_MM

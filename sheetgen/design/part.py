@@ -1,0 +1,179 @@
+"""The part model: what a kit is made of.
+
+A :class:`Part` is a flat piece cut from sheet. Its outline lives in the part's
+own plane (x, y in mm); the part occupies local z from 0 to its thickness. Each
+of its :class:`Placement` s is a rigid transform from that local frame into the
+kit frame (origin on the axle axis, x along the axle, z up when the panel faces
+the zenith). Placements are stored once, here, and every consumer (balance
+check, 3D model, clearance sweep) reads them from the part.
+
+A :class:`Component` is anything in the kit that is not cut from the sheet:
+the panel, the axle rod, the motor, hardware and counterweights. Components are
+simple solids (box, cylinder along x, point) so that mass properties are exact.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+from shapely.geometry import Polygon
+
+from sheetgen.geometry.placement import Placement, rotation_x, vec_tuple
+
+# Layer names used for marks; the cut layer is always "CUT".
+LAYER_CUT = "CUT"
+LAYER_LABEL = "LABEL"
+LAYER_GUIDE = "GUIDE"
+
+
+@dataclass(frozen=True)
+class Mark:
+    """A marking on a part (engraved or scored, never cut through).
+
+    kind "text": ``points`` holds one (x, y) anchor (centre of the text);
+    kind "line": ``points`` is an open polyline.
+    """
+
+    layer: str
+    kind: str
+    points: tuple[tuple[float, float], ...]
+    text: str = ""
+    height_mm: float = 3.0
+    angle_deg: float = 0.0  # text direction, counter-clockwise from +x
+
+    def moved(self, angle_deg: float, dx_mm: float, dy_mm: float) -> "Mark":
+        """This mark turned counter-clockwise by ``angle_deg`` about (0, 0), then moved."""
+        from sheetgen.geometry.shapes import turn_point
+
+        pts = tuple(tuple(round(v, 6) + 0.0 for v in turn_point(x, y, angle_deg, dx_mm, dy_mm))
+                    for x, y in self.points)
+        return Mark(self.layer, self.kind, pts, self.text, self.height_mm, (self.angle_deg + angle_deg) % 360.0)
+
+
+@dataclass(frozen=True)
+class Circle:
+    """A round hole of the nominal outline, kept so writers can emit true circles."""
+
+    x_mm: float
+    y_mm: float
+    radius_mm: float
+
+
+@dataclass(frozen=True)
+class Joint:
+    """One tab-and-slot joint instance, recorded for fit checks and reports.
+
+    ``tab_part``/``slot_part`` name the parts; widths are nominal (along the
+    edge) and the slot's across-thickness width; ``fit`` is the fit class.
+    """
+
+    tab_part: str
+    slot_part: str
+    tab_count: int
+    tab_width_mm: float
+    slot_length_mm: float
+    slot_width_mm: float
+    sheet_thickness_mm: float
+    fit: str
+
+
+@dataclass(frozen=True)
+class Part:
+    """A flat part cut from sheet.
+
+    outline:      nominal outline (what the part measures after cutting,
+                  joints exactly matched: tab width == slot length, slot width ==
+                  sheet thickness), a valid shapely Polygon with holes.
+    fit_outline:  the nominal outline with the joint fit allowances applied to
+                  its slots (press fits make slots narrower). Kerf compensation
+                  is applied to this one. Same as ``outline`` when no slot.
+    placements:   one per instance in the kit (len == qty).
+    rotations_deg: rotations the nester may use (grain rule).
+    """
+
+    name: str
+    outline: Polygon
+    thickness_mm: float
+    material: str
+    qty: int
+    placements: tuple[Placement, ...]
+    rotations_deg: tuple[float, ...] = (0.0, 90.0, 180.0, 270.0)
+    marks: tuple[Mark, ...] = ()
+    circles: tuple[Circle, ...] = ()  # round holes of the fit outline (what is cut, before kerf)
+    fit_outline: Polygon | None = None
+    description: str = ""
+
+    def __post_init__(self):
+        if self.qty < 1:
+            raise ValueError(f"part {self.name}: qty must be >= 1")
+        if len(self.placements) != self.qty:
+            raise ValueError(f"part {self.name}: {len(self.placements)} placements for qty {self.qty}")
+        if self.fit_outline is None:
+            object.__setattr__(self, "fit_outline", self.outline)
+
+    @property
+    def area_mm2(self) -> float:
+        return float(self.outline.area)
+
+    @property
+    def volume_mm3(self) -> float:
+        return self.area_mm2 * self.thickness_mm
+
+    @property
+    def bbox_mm(self) -> tuple[float, float]:
+        x0, y0, x1, y1 = self.outline.bounds
+        return (x1 - x0, y1 - y0)
+
+    @property
+    def rotating(self) -> bool:
+        return any(p.rotating for p in self.placements)
+
+    def local_centroid_mm(self) -> np.ndarray:
+        c = self.outline.centroid
+        return np.array([c.x, c.y, self.thickness_mm / 2.0])
+
+
+@dataclass(frozen=True)
+class Component:
+    """A kit item not cut from the sheet (panel, axle, motor, hardware).
+
+    shape "box": ``size_mm`` = (dx, dy, dz) in the kit frame at rotation 0,
+    centred on ``centre_mm``; "cylinder_x": ``size_mm`` = (length, diameter,
+    diameter), axis along kit x through ``centre_mm``; "point": a point mass.
+    """
+
+    name: str
+    mass_kg: float
+    shape: str
+    centre_mm: tuple[float, float, float]
+    size_mm: tuple[float, float, float] = (0.0, 0.0, 0.0)
+    rotating: bool = False
+
+    def turned(self, angle_deg: float) -> "Component":
+        if not self.rotating:
+            return self
+        c = rotation_x(angle_deg) @ np.asarray(self.centre_mm, dtype=float)
+        return Component(self.name, self.mass_kg, self.shape, vec_tuple(c), self.size_mm, True)
+
+
+@dataclass(frozen=True)
+class Kit:
+    """Everything one kit holds, in the kit frame at rotation angle 0."""
+
+    parts: tuple[Part, ...]
+    components: tuple[Component, ...]
+    joints: tuple[Joint, ...] = ()
+    # Named figures the factories decided (axle height, sweep radius, ...), mm.
+    figures: tuple[tuple[str, float], ...] = field(default=())
+    # The drive gear pair (sheetgen.drive.gears.GearPair) the wheel and pinion were cut from.
+    drive: object = None
+
+    def part(self, name: str) -> Part:
+        for p in self.parts:
+            if p.name == name:
+                return p
+        raise KeyError(name)
+
+    def figure(self, name: str) -> float:
+        return dict(self.figures)[name]

@@ -1,0 +1,1 @@
+"""Drive: involute tooth geometry, gear blanks and the meshing pair."""
