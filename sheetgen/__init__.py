@@ -1,3 +1,29 @@
-"""sheetgen: laser-cut single-axis sun-tracker kits from one parameter file."""
+"""sheetgen: laser-cut single-axis sun-tracker kits from one parameter file.
+
+The Python API (see :mod:`sheetgen.api`)::
+
+    import sheetgen
+
+    spec = sheetgen.load_params()                  # the shipped demo; or a path, with overrides
+    build = sheetgen.build(spec, kits=3, model=False)
+    sheetgen.write_build(build, "out")
+
+Importing sheetgen costs nothing: each call imports the core it needs.
+"""
+
+from __future__ import annotations
+
+from typing import Any
 
 __version__ = "0.1.0"
+
+__all__ = ["build", "build_kit", "check_balance", "load_params", "nest_kits", "plan_cuts", "write_build",
+           "__version__"]
+
+
+def __getattr__(name: str) -> Any:
+    if name in __all__:
+        from sheetgen import api
+
+        return getattr(api, name)
+    raise AttributeError(f"module 'sheetgen' has no attribute {name!r}")

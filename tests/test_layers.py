@@ -24,7 +24,7 @@ FLOORS = (
     ("mechanics",),
     ("production", "model3d"),
     ("io",),
-    ("build", "api", "samples"),
+    ("pipeline", "api", "samples"),
     ("commands", "cli", "__main__", "__init__"),
 )
 CORE = ("geometry", "drive", "design", "mechanics", "production", "model3d")

@@ -2,9 +2,7 @@
 
 from __future__ import annotations
 
-import json
 import time
-from pathlib import Path
 
 import click
 
@@ -31,13 +29,11 @@ def command(params, kits, out_dir, dxf_version, model, overrides, into_existing,
     design check fails the files are still written (report.html says which check
     and why) and the exit code is 4, unless --allow-failing is given.
     """
-    from sheetgen.build import run_build
+    from sheetgen.pipeline import run_build, with_model
     from sheetgen.commands.nest import Progress
-    from sheetgen.io.output import check_output_dir, staged_dir
-    from sheetgen.io.partfiles import write_part_files
-    from sheetgen.io.report import render_report
-    from sheetgen.io.sheets import write_sheets
     from sheetgen.design.spec import demo_params_path, load_spec
+    from sheetgen.io.buildout import write_build
+    from sheetgen.io.output import check_output_dir
 
     start = time.perf_counter()
     check_output_dir(out_dir, into_existing=into_existing)  # refuse a bad target before the long work
@@ -47,35 +43,10 @@ def command(params, kits, out_dir, dxf_version, model, overrides, into_existing,
         build = run_build(spec, kits, progress=progress)
     finally:
         progress.close()
-    assembly = None
     if model:
-        from sheetgen.model3d import assemble, build_assembly
-
-        solids, check = assemble(build.kit, spec)
-        assembly = (solids, check)
-        build.summary["assembly"] = {k: v for k, v in check.to_json().items() if k not in ("timing_s", "occ_calls")}
-    failing = failing_checks(build.summary)
-    build.summary["checks_ok"] = not failing
-    build.summary["failing_checks"] = failing
-    with staged_dir(out_dir, into_existing=into_existing) as tmp:
-        (tmp / "parts").mkdir()
-        (tmp / "sheets").mkdir()
-        write_part_files(build.kit, spec, tmp / "parts", dxf_version)
-        from sheetgen.production.cutplan import cut_plan_contours
-
-        write_sheets(tmp / "sheets", [r.sheet for r in build.sheets], build.nest.sheet_size_mm,
-                     build.nest.margin_mm, [cut_plan_contours(r.plan) for r in build.sheets], dxf_version)
-        (tmp / "summary.json").write_text(json.dumps(build.summary, indent=2) + "\n", encoding="utf-8")
-        picture = None
-        if assembly is not None:
-            from sheetgen.io.step import assembly_svg, write_step
-
-            (tmp / "model").mkdir()
-            name = Path(spec.source).stem
-            write_step(build_assembly(assembly[0], name=name), tmp / "model" / "assembly.step")
-            picture = assembly_svg(assembly[0].bodies, f"sheetgen kit: {name}")
-            (tmp / "model" / "assembly.svg").write_text(picture, encoding="utf-8")
-        (tmp / "report.html").write_text(render_report(build, picture), encoding="utf-8")
+        build = with_model(build)
+    write_build(build, out_dir, dxf_version=dxf_version, into_existing=into_existing)
+    failing = build.failing_checks
     s = build.summary
     click.echo(f"{s['kits']} kit(s): {s['parts']} parts on {s['sheets']} sheet(s) "
                f"(area bound {s['area_lower_bound_sheets']}), utilisation "
@@ -92,12 +63,3 @@ def command(params, kits, out_dir, dxf_version, model, overrides, into_existing,
         if not allow_failing:
             click.get_current_context().exit(4)
 
-
-def failing_checks(summary: dict) -> list[str]:
-    """Names of the binding design checks that fail: the balance and drive checks,
-    and the 3D assembly check when the model was built."""
-    out = [c["name"] for c in summary["balance"]["checks"] if not c["pass"] and c.get("binding", True)]
-    assembly = summary.get("assembly")
-    if assembly is not None and not assembly.get("ok", False):
-        out.append("3D assembly")
-    return out

@@ -85,7 +85,7 @@ def _sheets(build) -> list[str]:
 
 
 def render_report(build, assembly_svg: str | None = None) -> str:
-    """The report page for a finished build (sheetgen.build.BuildResult)."""
+    """The report page for a finished build (sheetgen.pipeline.BuildResult)."""
     s = build.summary
     spec = build.spec
     minutes = s["cut_time_s"] / 60

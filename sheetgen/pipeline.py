@@ -1,16 +1,25 @@
 """The whole job in one pure step: parameters to everything the laser needs.
 
-Spec -> kit -> balance check -> nested sheets -> cut plans -> figures. No files
-here: sheetgen/commands/build.py writes what this returns.
+Spec -> kit -> balance check -> nested sheets -> cut plans -> figures, and,
+on request, the 3D model and its checks. No files here:
+:func:`sheetgen.io.buildout.write_build` writes what this returns.
 """
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
+from typing import TYPE_CHECKING, Any
 
-from sheetgen.production.cutplan import CutPlan
 from sheetgen.design.part import Kit
+from sheetgen.design.spec import Spec
+from sheetgen.drive.gears import GearPair
+from sheetgen.mechanics.check import BalanceReport
+from sheetgen.production.cutplan import CutPlan
+from sheetgen.production.nesting import NestItem, NestResult
 from sheetgen.production.runs import PlacedSheet
+
+if TYPE_CHECKING:
+    from sheetgen.model3d import AssemblyReport, Model
 
 
 @dataclass(frozen=True)
@@ -22,16 +31,47 @@ class SheetRun:
 
 @dataclass(frozen=True)
 class BuildResult:
-    spec: object
+    spec: Spec
     kit: Kit
     kits: int
-    balance: object  # sheetgen.mechanics.check.BalanceReport
-    drive: object  # sheetgen.drive.gears.GearPair
-    nest: object  # sheetgen.production.nesting.NestResult
+    balance: BalanceReport
+    drive: GearPair
+    nest: NestResult
     sheets: tuple[SheetRun, ...]
-    items: tuple
-    summary: dict
+    items: tuple[NestItem, ...]
+    summary: dict[str, Any]  # what summary.json holds
     patterns: tuple[tuple[int, ...], ...] = ()  # sheet positions (0-based) cut from one layout
+    model: Model | None = None  # the 3D model, when built (see :func:`with_model`)
+    assembly: AssemblyReport | None = None
+
+    @property
+    def failing_checks(self) -> list[str]:
+        """Names of the binding design checks that fail: the balance and drive
+        checks, and the 3D assembly check when the model was built."""
+        return failing_checks(self.summary)
+
+
+def failing_checks(summary: dict[str, Any]) -> list[str]:
+    """Names of the binding design checks that fail in a build summary."""
+    out = [c["name"] for c in summary["balance"]["checks"] if not c["pass"] and c.get("binding", True)]
+    assembly = summary.get("assembly")
+    if assembly is not None and not assembly.get("ok", False):
+        out.append("3D assembly")
+    return out
+
+
+def with_model(build: BuildResult) -> BuildResult:
+    """The same build with its 3D model built and checked (cadquery), the
+    assembly figures in the summary and the verdict updated."""
+    from sheetgen.model3d import assemble
+
+    model, report = assemble(build.kit, build.spec)
+    summary = dict(build.summary)
+    summary["assembly"] = {k: v for k, v in report.to_json().items() if k not in ("timing_s", "occ_calls")}
+    failing = failing_checks(summary)
+    summary["checks_ok"] = not failing
+    summary["failing_checks"] = failing
+    return replace(build, summary=summary, model=model, assembly=report)
 
 
 def _plan(args):
@@ -41,44 +81,68 @@ def _plan(args):
     return plan_sheet(list(contours), settings, sheet_size_mm=sheet_mm)
 
 
-def run_build(spec, kits: int, progress=None, jobs: int | None = None) -> BuildResult:
-    """Everything a build writes, computed. Sheets of one pattern share one
-    cut plan (planned once); ``jobs`` processes run the layout searches and
-    plan the distinct sheets (default every core; the result does not depend
-    on it)."""
+@dataclass(frozen=True)
+class NestRun:
+    """A production run nested and verified: the nest items (one per distinct
+    part), the nester's result and every sheet's contours in the nester's order."""
+
+    items: tuple[NestItem, ...]
+    result: NestResult
+    sheets: tuple[PlacedSheet, ...]
+    patterns: tuple[tuple[int, ...], ...]  # sheet positions (0-based) cut from one layout
+
+
+def _jobs(jobs: int | None) -> int:
     import os
 
-    from sheetgen.production.cutplan import settings_from_spec
+    return max(1, os.cpu_count() or 1) if jobs is None else jobs
+
+
+def nest_run(spec: Spec, kit: Kit, kits: int, progress: Any = None, jobs: int | None = None) -> NestRun:
+    """``kits`` copies of the kit's parts, kerf-compensated, nested on the
+    spec's sheet stock and verified (``jobs`` processes; the layout does not
+    depend on it)."""
     from sheetgen.errors import GeometryBug, ParameterError
-    from sheetgen.io.sheets import map_jobs
-    from sheetgen.design.kit import build_kit
-    from sheetgen.mechanics.check import balance_check
     from sheetgen.production.nesting import nest, sheet_patterns, verify
     from sheetgen.production.runs import kit_items, placed_sheets
 
     if kits < 1:
         raise ParameterError(f"--kits {kits}: must be a whole number >= 1")
-    kit = build_kit(spec)
-    balance = balance_check(kit, spec)
-    drive = kit.drive
     items, sources = kit_items(kit, spec.laser.kerf_mm, kits)
-    sheet_mm = (spec.sheet.width_mm, spec.sheet.height_mm)
-    jobs = max(1, os.cpu_count() or 1) if jobs is None else jobs
-    result = nest(items, sheet_mm=sheet_mm, margin_mm=spec.sheet.margin_mm, spacing_mm=spec.nest.spacing_mm,
-                  time_limit_s=spec.nest.time_limit_s, effort=spec.nest.effort or None, seed=spec.nest.seed,
-                  progress=progress, jobs=jobs)
+    result = nest(items, sheet_mm=(spec.sheet.width_mm, spec.sheet.height_mm), margin_mm=spec.sheet.margin_mm,
+                  spacing_mm=spec.nest.spacing_mm, time_limit_s=spec.nest.time_limit_s,
+                  effort=spec.nest.effort or None, seed=spec.nest.seed, progress=progress, jobs=_jobs(jobs))
     try:
         verify(result, items)
     except GeometryBug as exc:
         raise GeometryBug(f"nested layout failed verification: {exc}") from None
+    return NestRun(tuple(items), result, tuple(placed_sheets(result, items, sources)),
+                   tuple(tuple(g) for g in sheet_patterns(result)))
+
+
+def run_build(spec: Spec, kits: int, progress: Any = None, jobs: int | None = None) -> BuildResult:
+    """Everything a build writes, computed. Sheets of one pattern share one
+    cut plan (planned once); ``jobs`` processes run the layout searches and
+    plan the distinct sheets (default every core; the result does not depend
+    on it)."""
+    from sheetgen.design.kit import build_kit
+    from sheetgen.io.sheets import map_jobs
+    from sheetgen.mechanics.check import balance_check
+    from sheetgen.production.cutplan import settings_from_spec
+
+    kit = build_kit(spec)
+    balance = balance_check(kit, spec)
+    drive = kit.drive
+    run = nest_run(spec, kit, kits, progress, jobs)
+    result, placed, patterns = run.result, run.sheets, run.patterns
+    sheet_mm = (spec.sheet.width_mm, spec.sheet.height_mm)
     settings = settings_from_spec(spec)
-    placed = placed_sheets(result, items, sources)
-    patterns = sheet_patterns(result)
-    plans = map_jobs(_plan, [(placed[g[0]].contours, settings, sheet_mm) for g in patterns], jobs)
+    plans = map_jobs(_plan, [(placed[g[0]].contours, settings, sheet_mm) for g in patterns], _jobs(jobs))
     plan_of = {k: plan for g, plan in zip(patterns, plans) for k in g}
     runs = [SheetRun(sheet, plan_of[k], util) for k, (sheet, util) in enumerate(zip(placed, result.utilisation))]
     summary = _summary(spec, kit, kits, balance, drive, result, runs)
-    return BuildResult(spec, kit, kits, balance, drive, result, tuple(runs), tuple(items), summary, patterns)
+    summary["failing_checks"] = failing_checks(summary)
+    return BuildResult(spec, kit, kits, balance, drive, result, tuple(runs), run.items, summary, patterns)
 
 
 def _r(v, nd=3):
