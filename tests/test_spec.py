@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import copy
 import tomllib
+from pathlib import Path
 
 import pytest
 
@@ -217,3 +218,36 @@ def test_a_resolved_spec_lists_what_was_derived(demo_spec):
     paths = {d.path for d in demo_spec.derived}
     assert "axle.height" in paths and "panel.width" not in paths
     assert all(d.rule for d in demo_spec.derived)
+
+
+def test_typed_sections_are_generated_from_the_schema():
+    # internal consistency: sheetgen/design/sections.py is what the schema writes, field for field
+    import dataclasses
+    import typing
+
+    from sheetgen.design import sections
+    from sheetgen.design.spec import SCHEMA, SECTIONS, section_class_name, sections_source
+
+    path = Path(sections.__file__)
+    assert path.read_text(encoding="utf-8") == sections_source(), \
+        "sheetgen/design/sections.py is stale: run `python -m sheetgen.design.spec --sections > sheetgen/design/sections.py`"
+    for section in SECTIONS:
+        cls = getattr(sections, section_class_name(section))
+        assert dataclasses.is_dataclass(cls) and cls.__dataclass_params__.frozen
+        hints = typing.get_type_hints(cls)
+        keys = [k for k in SCHEMA if k.section == section]
+        assert [f.name for f in dataclasses.fields(cls)] == [k.attr for k in keys]
+        for k in keys:
+            if k.choices:
+                assert typing.get_args(hints[k.attr]) == k.choices, k.path
+            else:
+                assert hints[k.attr] is k.kind, k.path
+
+
+def test_a_loaded_spec_holds_typed_sections_with_every_derived_key_solved():
+    from sheetgen.design import sections
+
+    spec = load_spec(DEMO)
+    assert isinstance(spec.panel, sections.PanelParams) and isinstance(spec.drive, sections.DriveParams)
+    assert spec.is_resolved()
+    assert isinstance(spec.axle.height_mm, float) and isinstance(spec.drive.wheel_teeth, int)

@@ -15,11 +15,17 @@ from __future__ import annotations
 import difflib
 import math
 import tomllib
-from dataclasses import dataclass, make_dataclass
+from dataclasses import dataclass
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
+from sheetgen.design.sections import SECTION_CLASSES
 from sheetgen.errors import InputFileError, ParameterError
+
+if TYPE_CHECKING:
+    from sheetgen.design.sections import (AxleParams, CheckParams, DriveParams, FrameParams, JointsParams,
+                                          LaserParams, MotorParams, NestParams, PanelParams, SheetParams,
+                                          SiteParams)
 
 REQUIRED = object()
 AUTO = "auto"  # a derived key left to the layout solver (sheetgen/design/solver.py)
@@ -201,12 +207,39 @@ ROTATING_MASS_LIMIT_KG = (0.0, 20.0)
 POSITION_LIMIT_MM = 2000.0
 
 
-def _section_class(section: str):
-    keys = [k for k in SCHEMA if k.section == section]
-    return make_dataclass(section.capitalize() + "Params", [(k.attr, k.kind) for k in keys], frozen=True)
+def section_class_name(section: str) -> str:
+    return section.capitalize() + "Params"
 
 
-SECTION_CLASSES = {s: _section_class(s) for s in SECTIONS}
+def sections_source() -> str:
+    """The Python source of :mod:`sheetgen.design.sections`: one frozen, typed
+    dataclass per section, written from SCHEMA (``python -m sheetgen.design.spec
+    --sections`` prints it; a test keeps the module current)."""
+    lines = ['"""Typed parameter sections, one frozen dataclass per section of the schema.',
+             "",
+             "Generated from sheetgen.design.spec.SCHEMA by `python -m sheetgen.design.spec --sections`;",
+             "tests/test_spec.py fails while this file differs from what the schema writes. Do not edit.",
+             "A derived key holds the number the layout solver set (or the pinned one) once the",
+             'spec is loaded; only inside the solver may it still read "auto".',
+             '"""',
+             "",
+             "from __future__ import annotations",
+             "",
+             "from dataclasses import dataclass",
+             "from typing import Literal"]
+    for section in SECTIONS:
+        lines += ["", "", "@dataclass(frozen=True)", f"class {section_class_name(section)}:",
+                  f'    """[{section}] (see the README\'s parameter table for units, ranges and meaning)."""', ""]
+        for k in SCHEMA:
+            if k.section != section:
+                continue
+            kind = "Literal[" + ", ".join(repr(c) for c in k.choices) + "]" if k.choices else k.kind.__name__
+            note = f"  # {k.path}, {k.unit}" + (", derived" if k.derived else "")
+            lines.append(f"    {k.attr}: {kind}{note}")
+    lines += ["", "", "SECTION_CLASSES: dict[str, type] = {"]
+    lines += [f'    "{s}": {section_class_name(s)},' for s in SECTIONS]
+    lines += ["}", ""]
+    return "\n".join(lines)
 
 
 @dataclass(frozen=True)
@@ -226,17 +259,17 @@ class Derived:
 
 @dataclass(frozen=True)
 class Spec:
-    panel: Any
-    sheet: Any
-    laser: Any
-    nest: Any
-    joints: Any
-    frame: Any
-    axle: Any
-    motor: Any
-    drive: Any
-    site: Any
-    check: Any
+    panel: PanelParams
+    sheet: SheetParams
+    laser: LaserParams
+    nest: NestParams
+    joints: JointsParams
+    frame: FrameParams
+    axle: AxleParams
+    motor: MotorParams
+    drive: DriveParams
+    site: SiteParams
+    check: CheckParams
     rotating_masses: tuple[RotatingMass, ...]
     source: str = ""
     derived: tuple[Derived, ...] = ()  # filled by the solver: the keys that were "auto"
@@ -505,4 +538,6 @@ def reference_markdown() -> str:
 
 
 if __name__ == "__main__":  # pragma: no cover
-    print(reference_markdown())
+    import sys
+
+    print(sections_source() if sys.argv[1:] == ["--sections"] else reference_markdown(), end="" if sys.argv[1:] else "\n")
