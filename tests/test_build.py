@@ -151,9 +151,10 @@ def test_report_renders_in_headless_chromium(out, tmp_path):
 
 
 def test_a_failing_design_check_exits_4_and_still_writes_the_files(tmp_path):
-    # contract (README exit codes): 4 = files written, a design check fails; a motor of
-    # 0.001 N·m stall torque cannot turn the frame (the balance check names "motor torque")
-    weak = ("--set", "motor.stall_torque=0.001", "--no-model")
+    # contract (README exit codes): 4 = files written, a design check fails; with the gear
+    # module pinned, a motor of 0.03 N·m stall torque turns the frame at the most teeth that
+    # module allows, but short of check.torque_margin (the balance check names "motor torque")
+    weak = ("--set", "motor.stall_torque=0.03", "--set", "drive.module=1.5", "--no-model")
     out = tmp_path / "weak"
     res = run("build", DEMO, *weak, "-o", out)
     assert res.exit_code == 4, res.output

@@ -329,7 +329,8 @@ def test_demo_probe_mass_and_counterweight():
     cw = probed.counterweight
     doc_c = _demo_doc()
     doc_c["rotating_mass"] += [{"name": "probe", "mass_kg": 0.05, "position_mm": [0.0, 40.0, 0.0]},
-                               {"name": "counterweight", "mass_kg": cw.mass_kg, "position_mm": list(cw.position_mm)}]
+                               {"name": "probe counterweight", "mass_kg": cw.mass_kg,
+                                "position_mm": list(cw.position_mm)}]
     balanced = _report(doc_c)
     assert balanced.mass.static_unbalance_gmm == pytest.approx(0.0, abs=1e-6)
     assert balanced.gravity_torque_max_Nm == pytest.approx(0.0, abs=1e-12)
@@ -401,8 +402,11 @@ def test_failing_variants_say_which_check_and_why():
 
 def test_demo_pulse_fix_passes_when_built_in():
     # check the machine: the change the failing pulse check names (the counterweight,
-    # then a smaller capacitor) is put into the parameters and the kit checked again
+    # then a smaller capacitor) is put into the parameters and the kit checked again; the
+    # demo without its counterweight and with a large 4700 µF pulse fails
     doc = _demo_doc()
+    doc["rotating_mass"] = [m for m in doc["rotating_mass"] if m["name"] != "counterweight"]
+    doc["drive"]["pulse_capacitance"] = 4700
     r = _report(doc)
     step = next(c for c in r.checks if c.name == "pulse step in calm air")
     assert not step.passed and "would pass" in step.reason

@@ -444,7 +444,7 @@ def test_core_geometry_raises_typed_errors():
 def test_a_stray_value_error_is_one_line_and_exit_3(tmp_path, monkeypatch):
     import sheetgen.design.kit as kit
 
-    def broken(spec):
+    def broken(spec, **options):
         raise ValueError("an invariant of ours failed")
 
     monkeypatch.setattr(kit, "build_kit", broken)
