@@ -14,12 +14,13 @@ from pathlib import Path
 
 ROOT = Path(__file__).resolve().parents[1]
 
-LEFT_OUT = ("build-demo-3-kits/model/assembly.step",)
+BUILD_SAMPLE = "build-demo-3-kits"
+# a fixed work budget and a far wall-clock ceiling: the same layout on any machine and load
+BUILD_ARGS = ["build", "params/demo.toml", "--kits", "3", "--set", "nest.effort=9", "--set", "nest.time_limit=600"]
+LEFT_OUT = (f"{BUILD_SAMPLE}/model/assembly.step",)
 # (sub-folder or file, command line after `sheetgen`, stdout file or None)
 RUNS = (
-    # a fixed work budget and a far wall-clock ceiling: the same layout on any machine and load
-    ("build-demo-3-kits", ["build", "params/demo.toml", "--kits", "3", "--set", "nest.effort=9",
-                           "--set", "nest.time_limit=600", "-o", "{out}"], None),
+    (BUILD_SAMPLE, [*BUILD_ARGS, "-o", "{out}"], None),
     ("parts-large-6mm", ["parts", "params/large-6mm.toml", "-o", "{out}"], None),
     ("parts-acrylic-polar-r12", ["parts", "params/acrylic-polar.toml", "--dxf-version", "R12", "-o", "{out}"], None),
     ("balance-demo.json", ["balance", "params/demo.toml", "--json"], "stdout"),
@@ -30,8 +31,14 @@ RUNS = (
 )
 
 
-def generate(folder: Path) -> None:
-    """Write every sample into ``folder`` (which must not exist yet)."""
+def command_line(args: list[str], out: Path) -> list[str]:
+    """A sample's command line with its output folder and the parameter files' paths filled in."""
+    argv = [a.replace("{out}", str(out)) for a in args]
+    return [str(ROOT / a) if a.startswith("params/") else a for a in argv]
+
+
+def generate(folder: Path, skip: tuple[str, ...] = ()) -> None:
+    """Write every sample but those named in ``skip`` into ``folder`` (which must not exist yet)."""
     from click.testing import CliRunner
 
     from sheetgen.cli import main
@@ -39,16 +46,17 @@ def generate(folder: Path) -> None:
     folder.mkdir(parents=True)
     runner = CliRunner()
     for name, args, capture in RUNS:
+        if name in skip:
+            continue
         target = folder / name
-        argv = [a.replace("{out}", str(target)) for a in args]
-        argv = [str(ROOT / a) if a.startswith("params/") else a for a in argv]
-        res = runner.invoke(main, argv)
+        res = runner.invoke(main, command_line(args, target))
         if res.exit_code != 0:
             raise RuntimeError(f"sheetgen {' '.join(args)} failed ({res.exit_code}): {res.output}")
         if capture == "stdout":
             target.write_text(res.stdout, encoding="utf-8")
     for name in LEFT_OUT:
-        (folder / name).unlink()
+        if name.split("/")[0] not in skip:
+            (folder / name).unlink()
 
 
 def main(argv: list[str] | None = None) -> int:

@@ -14,7 +14,6 @@ from tests import _refs
 ROOT = Path(__file__).resolve().parents[1]
 PARAMS = ROOT / "params"
 DEMO = PARAMS / "demo.toml"
-DEMO_BUILD_KITS = 3
 
 settings.register_profile("ci", max_examples=25, deadline=None,
                           suppress_health_check=[HealthCheck.too_slow])
@@ -52,15 +51,18 @@ def demo_kit(demo_spec):
 
 @pytest.fixture(scope="session")
 def demo_build_3(tmp_path_factory):
-    """`sheetgen build params/demo.toml --kits 3` (3D model included), run once per test session.
+    """The samples' demo build (`sheetgen build params/demo.toml --kits 3` with a fixed work
+    budget, 3D model included), run once per test session: test_build reads it and
+    test_samples compares it with output_samples/.
 
     Returns (folder, summary.json as a dict). Tests only read the folder; a test that needs to
     change or rebuild it makes its own copy."""
     from click.testing import CliRunner
 
     from sheetgen.cli import main
+    from sheetgen.samples import BUILD_ARGS, command_line
 
     out = tmp_path_factory.mktemp("demo-build-3") / "out"
-    res = CliRunner().invoke(main, ["build", str(DEMO), "--kits", str(DEMO_BUILD_KITS), "-o", str(out)])
+    res = CliRunner().invoke(main, command_line([*BUILD_ARGS, "-o", "{out}"], out))
     assert res.exit_code == 0, res.output
     return out, json.loads((out / "summary.json").read_text(encoding="utf-8"))

@@ -16,8 +16,6 @@ from tests.conftest import DEMO
 from tests.dxfread import read_cut_contours
 
 KITS = 3
-# a fixed work budget and a far wall-clock ceiling: the same bytes on any machine and load
-FIXED_WORK = ("--set", "nest.effort=5", "--set", "nest.time_limit=600")
 
 
 def run(*args):
@@ -25,16 +23,13 @@ def run(*args):
 
 
 @pytest.fixture(scope="module")
-def out(tmp_path_factory):
-    d = tmp_path_factory.mktemp("build") / "out"
-    res = run("build", DEMO, "--kits", KITS, *FIXED_WORK, "-o", d)
-    assert res.exit_code == 0, res.output
-    return d
+def out(demo_build_3):
+    return demo_build_3[0]  # the session's one three-kit demo build (tests/conftest.py)
 
 
 @pytest.fixture(scope="module")
-def summary(out):
-    return json.loads((out / "summary.json").read_text())
+def summary(demo_build_3):
+    return demo_build_3[1]
 
 
 def test_writes_parts_sheets_report_and_summary(out, summary):
@@ -98,8 +93,10 @@ def test_preflight_passes_every_sheet(out, demo_spec):
 
 
 def test_two_builds_are_byte_identical(out, tmp_path):
+    from sheetgen.samples import BUILD_ARGS, command_line
+
     again = tmp_path / "again"
-    assert run("build", DEMO, "--kits", KITS, *FIXED_WORK, "-o", again).exit_code == 0
+    assert run(*command_line([*BUILD_ARGS, "-o", "{out}"], again)).exit_code == 0
     files = sorted(p.relative_to(out) for p in out.rglob("*") if p.is_file())
     assert files == sorted(p.relative_to(again) for p in again.rglob("*") if p.is_file())
     for f in files:
@@ -107,7 +104,7 @@ def test_two_builds_are_byte_identical(out, tmp_path):
 
 
 def test_without_params_it_runs_the_shipped_demo(tmp_path):
-    res = run("build", "-o", tmp_path / "demo")
+    res = run("build", "--no-model", "-o", tmp_path / "demo")
     assert res.exit_code == 0, res.output
     assert json.loads((tmp_path / "demo" / "summary.json").read_text())["parameters"] == "demo.toml"
 
