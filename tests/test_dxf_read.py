@@ -253,10 +253,10 @@ def test_block_on_layer_zero_takes_the_insert_layer_for_both(tmp_path):
 @given(st.lists(st.tuples(st.integers(0, 40), st.integers(0, 40)), min_size=1, max_size=60))
 def test_end_clustering_matches_a_brute_force_closure(cells):
     # internal cross-check: the vectorised clustering against a plain transitive closure
-    from sheetgen.io.dxf_read import JOIN_TOL_MM, _cluster
+    from sheetgen.geometry.cutpaths import JOIN_TOL_MM, cluster_points
 
     pts = np.array(cells, dtype=float) * (JOIN_TOL_MM * 0.6)  # neighbours on the grid are within the tolerance
-    got = _cluster(pts, JOIN_TOL_MM)
+    got = cluster_points(pts, JOIN_TOL_MM)
     n = len(pts)
     near = np.hypot(*(pts[:, None, :] - pts[None, :, :]).transpose(2, 0, 1)) <= JOIN_TOL_MM
     reach = near.copy()

@@ -78,7 +78,7 @@ def closed_rings(geo: CutGeometry) -> Joined:
     if not open_ids:
         return Joined(tuple(rings), tuple(sources), (), (), ())
     ends = np.array([pt for i in open_ids for pt in (geo.paths[i][0], geo.paths[i][-1])], dtype=float)
-    node = _cluster(ends, JOIN_TOL_MM)
+    node = cluster_points(ends, JOIN_TOL_MM)
     degree = np.bincount(node, minlength=len(ends))
     loose = tuple((float(ends[k][0]), float(ends[k][1])) for k in range(len(ends))
                   if node[k] == k and degree[k] == 1)
@@ -129,7 +129,7 @@ def closed_rings(geo: CutGeometry) -> Joined:
     return Joined(tuple(rings), tuple(sources), loose, branches, tuple(open_chains))
 
 
-def _cluster(points: np.ndarray, tol: float) -> np.ndarray:
+def cluster_points(points: np.ndarray, tol: float) -> np.ndarray:
     """For each point the index of its cluster's smallest member: points within
     ``tol`` of each other (transitively) are one cluster. Pairs come from an
     STRtree query; labels spread along the pairs until they settle."""
