@@ -8,9 +8,10 @@ import math
 from dataclasses import dataclass, field
 
 from sheetgen.numbers import sig
-from sheetgen.mechanics import loads, solar, tracking
+from sheetgen.mechanics import loads, solar
 from sheetgen.mechanics.drive import DriveTime
 from sheetgen.mechanics.pulse import AxleLoad
+from sheetgen.mechanics.tracking import YearTracking
 from sheetgen.mechanics.massprops import Counterweight, MassProperties
 from sheetgen.mechanics.load_geometry import WindPlate
 
@@ -50,7 +51,7 @@ class BalanceReport:
     wind: WindPlate
     load_torque_Nm: float
     drive: loads.DriveFigures
-    year: tracking.YearTracking
+    year: YearTracking
     drive_time: DriveTime
     calm_load: AxleLoad  # what resists the frame in calm air (for the pulse model and the plots)
     wind_load: AxleLoad  # ... in the design wind

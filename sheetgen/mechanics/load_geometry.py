@@ -7,9 +7,11 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from shapely.geometry import Polygon, box
+from shapely.geometry import MultiPolygon, Polygon, box
+from shapely.geometry.base import BaseGeometry
 from shapely.ops import unary_union
 
+from sheetgen.errors import GeometryBug
 from sheetgen.mechanics import loads
 from sheetgen.design.part import Kit
 
@@ -29,7 +31,7 @@ class WindPlate:
 # geometry the loads need
 
 
-def wind_plate_footprint(kit: Kit) -> Polygon:
+def wind_plate_footprint(kit: Kit) -> Polygon | MultiPolygon:
     """What the wind sees square-on at rotation 0: the union of the x-y
     footprints of the rotating parts lying flat (sheet square to z) and of the
     rotating box components (the panel), holes filled (the panel covers its
@@ -53,9 +55,18 @@ def wind_plate_footprint(kit: Kit) -> Polygon:
             shapes.append(box(cx - dx / 2, cy - dy / 2, cx + dx / 2, cy + dy / 2))
     if not shapes:
         return Polygon()
-    u = unary_union(shapes)
-    polys = [u] if u.geom_type == "Polygon" else list(u.geoms)
-    return unary_union([Polygon(p.exterior) for p in polys])
+    u = _polygons(unary_union(shapes))
+    polys = [u] if isinstance(u, Polygon) else list(u.geoms)
+    return _polygons(unary_union([Polygon(p.exterior) for p in polys]))
+
+
+def _polygons(g: BaseGeometry) -> Polygon | MultiPolygon:
+    """A union of areas as what it is (one polygon or several); an empty union as an empty polygon."""
+    if isinstance(g, (Polygon, MultiPolygon)):
+        return g
+    if g.is_empty:
+        return Polygon()
+    raise GeometryBug(f"the wind plate footprint is a {g.geom_type}, not an area")
 
 
 def wind_plate(kit: Kit, spec) -> WindPlate:

@@ -22,6 +22,22 @@ class NoLayout(ParameterError):
         self.figures = figures
 
 
+def key_lo(path: str) -> float:
+    """The lower limit of a schema key the solver searches over (each such key has one)."""
+    lo = SCHEMA_BY_PATH[path].lo
+    if lo is None:
+        raise RuntimeError(f"{path}: the schema gives no lower limit, and the solver needs one")
+    return lo
+
+
+def key_hi(path: str) -> float:
+    """The upper limit of a schema key the solver searches over (each such key has one)."""
+    hi = SCHEMA_BY_PATH[path].hi
+    if hi is None:
+        raise RuntimeError(f"{path}: the schema gives no upper limit, and the solver needs one")
+    return hi
+
+
 @dataclass(frozen=True)
 class Rule:
     name: str

@@ -7,11 +7,12 @@ Pure: no printing, no files.
 from __future__ import annotations
 
 import math
+from collections.abc import Sequence
 
 from sheetgen.errors import ParameterError, SheetTooSmall
 from sheetgen.design.spec import SCHEMA_BY_PATH
 from sheetgen.design.solver.fixed_point import solve_core
-from sheetgen.design.solver.model import NoLayout, with_values
+from sheetgen.design.solver.model import NoLayout, key_hi, key_lo, with_values
 
 
 # ---------------------------------------------------------------------------
@@ -75,6 +76,7 @@ def refusal(spec, exc, depth: int = 0) -> str:
         hint = exc.figures["stall_needed_Nm"]
     elif kind == "shaft":
         hint = exc.figures["need_mm"]
+    order: Sequence[tuple[str, str]]
     if kind == "sheet" and spec.panel.width_mm > spec.panel.height_mm:
         order = CANDIDATES[kind]
     else:
@@ -86,7 +88,7 @@ def refusal(spec, exc, depth: int = 0) -> str:
         if way == "up":
             good = _grow_until_builds(spec, path, max(hint if (hint and path == order[0][0]) else now * 1.01, now))
         else:
-            lo = SCHEMA_BY_PATH[path].lo
+            lo = key_lo(path)
             good = _bisect(spec, path, now, lo, STEP[path]) if now > lo else None
         if good is not None and good != now:
             word = "the highest" if way == "down" else "the least"
@@ -129,14 +131,14 @@ def _panel_scaled(spec, why: str) -> str | None:
 def _grow_until_builds(spec, path: str, first: float) -> float | None:
     """The least value from ``first`` upward that builds: doubling until one
     does, then bisection against the value below it to 2 %."""
-    k = SCHEMA_BY_PATH[path]
-    v = min(max(first, k.lo), k.hi)
+    lo, hi = key_lo(path), key_hi(path)
+    v = min(max(first, lo), hi)
     below = spec.value(path)
     while not _try(spec, path, _nice_up(v)):
-        if v >= k.hi:
+        if v >= hi:
             return None
         below = v
-        v = min(v * 2, k.hi)
+        v = min(v * 2, hi)
     v = _nice_up(v)
     while v - below > 0.02 * v:
         mid = _nice_up((v + below) / 2)

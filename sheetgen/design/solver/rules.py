@@ -11,7 +11,7 @@ import math
 
 from sheetgen.errors import ParameterError
 from sheetgen.design.spec import SCHEMA_BY_PATH
-from sheetgen.design.solver.model import NoLayout, Rule, State, with_values
+from sheetgen.design.solver.model import NoLayout, Rule, State, key_hi, key_lo, with_values
 
 
 # ISO 54 first-choice modules from 1 to 6 mm (from memory)
@@ -41,7 +41,7 @@ def _centre_distance_mm(spec) -> float:
 def _height_floor_mm(spec) -> float:
     from sheetgen.design.layout import motor_floor_height_mm
 
-    return max(SCHEMA_BY_PATH["axle.height"].lo, motor_floor_height_mm(spec, _centre_distance_mm(spec)))
+    return max(key_lo("axle.height"), motor_floor_height_mm(spec, _centre_distance_mm(spec)))
 
 
 def _build(spec, height_mm: float):
@@ -110,7 +110,7 @@ def _teeth_carry_load(st: State) -> dict:
     strength = sheet_material(s.sheet.material).bending_strength_MPa
     ratio = d.wheel_teeth / d.pinion_teeth
     motor_Nm = load / (ratio * d.efficiency)
-    best = None
+    best: tuple[float, float, int] | None = None
     for m in modules:
         for n in layer_counts:
             fig = loads.tooth_figures(load, motor_Nm, m, d.pinion_teeth, d.wheel_teeth, n * t, strength,
@@ -119,6 +119,9 @@ def _teeth_carry_load(st: State) -> dict:
                 return {"drive.module": m, "drive.layers": n}
             if m <= 2 * max(m0, min(modules)) and (best is None or fig.stress_MPa < best[0]):
                 best = (fig.stress_MPa, m, n)
+    if best is None:  # the wheel's cap leaves no module of the series
+        raise NoLayout(f"drive.module: no module of the ISO 54 series from {MIN_MODULE_MM:g} mm is left under "
+                       f"the limit the wheel sets ({st.module_cap_mm} mm)", "module")
     # none carries the load: the least stressed; the tooth check's verdict says it fails
     return {"drive.module": best[1], "drive.layers": best[2]}
 
@@ -144,7 +147,7 @@ def _pinion_fits_shaft(st: State) -> dict:
 
     s = st.spec
     m = s.drive.module_mm
-    for z in range(MIN_PINION_TEETH, SCHEMA_BY_PATH["drive.pinion_teeth"].hi + 1):
+    for z in range(MIN_PINION_TEETH, int(key_hi("drive.pinion_teeth")) + 1):
         if root_radius_mm(m, z, _pinion_shift_for(st, z)) - s.motor.shaft_diameter_mm / 2 >= web_mm(m) - 1e-9:
             return {"drive.pinion_teeth": z}
     raise NoLayout(f"motor.shaft_diameter = {s.motor.shaft_diameter_mm:g}: no pinion of module {m:g} mm "
@@ -204,7 +207,7 @@ def _motor_shaft_reach(st: State) -> dict:
 
     s = st.spec
     t, layers, shaft = s.sheet.thickness_mm, s.drive.layers, s.motor.shaft_length_mm
-    n_max = SCHEMA_BY_PATH["drive.wheel_spacers"].hi
+    n_max = int(key_hi("drive.wheel_spacers"))
     if not st.is_auto("drive.mount_gap"):
         gap = s.drive.mount_gap_mm
         poke = shaft - (t + gap + layers * t)  # past the pinion's inner face toward the support

@@ -24,5 +24,5 @@ __all__ = ["BACKLASH_MAX_MODULES", "BORE_SHAPES", "CHORD_TOL_RANGE_MM", "DEFAULT
            "GearPair", "GearSpec", "Hub", "KERF_RANGE_MM", "MIN_BORE_MM", "MIN_CLEARANCE_MODULES",
            "MIN_CONTACT_RATIO", "MIN_TIP_LAND_MODULES", "MODULE_RANGE_MM", "PRESSURE_ANGLE_RANGE_DEG",
            "RIM_MODULES", "SHIFT_RANGE", "TEETH_RANGE", "WEB_MIN_MM", "centre_distance_mm", "check_gear_spec",
-           "check_in_range", "contact_ratio", "gear_blank", "gear_pair", "hole_ring", "hole_size", "plan_windows", "undercut_limit",
-           "web_mm", "window_rings"]
+           "check_in_range", "contact_ratio", "gear_blank", "gear_pair", "hole_ring", "hole_size", "plan_windows",
+           "undercut_limit", "web_mm", "window_rings"]

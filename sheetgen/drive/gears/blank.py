@@ -19,7 +19,8 @@ from sheetgen.errors import GeometryBug, SheetgenError
 from sheetgen.drive import involute as inv_m
 from sheetgen.drive.involute import DEFAULT_CHORD_TOL_MM
 from sheetgen.drive.gears.hub import hole_ring, hole_size, plan_windows, web_mm, window_rings
-from sheetgen.drive.gears.spec import DEFAULT_LABELS, GearGeometry, GearSpec, MIN_TIP_LAND_MODULES, SHIFT_RANGE, check_gear_spec
+from sheetgen.drive.gears.spec import (DEFAULT_LABELS, GearGeometry, GearSpec, MIN_TIP_LAND_MODULES, SHIFT_RANGE,
+                                       check_gear_spec)
 
 
 # --------------------------------------------------------------------------

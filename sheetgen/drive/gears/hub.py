@@ -48,6 +48,8 @@ def hole_ring(hub: Hub, offset_mm: float, tol: float) -> np.ndarray | None:
         r = size / 2.0 - d
         return inv_m.arc_points(r, 0.0, 2.0 * math.pi, tol)[:-1]
     if shape == "d":
+        if hub.across_flats_mm is None:  # check_gear_spec refuses a d hole without it
+            raise GeometryBug("a d hole without across_flats_mm reached the blank")
         r = size / 2.0 - d
         h = hub.across_flats_mm - size / 2.0 - d          # flat's distance from the centre (+y side)
         a = math.asin(h / r)

@@ -16,7 +16,8 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
-from sheetgen.drive.involute.dimensions import RACK_DEDENDUM, RACK_ROOT_FILLET, inv, pitch_tooth_thickness_mm, tip_radius_mm
+from sheetgen.drive.involute.dimensions import (RACK_DEDENDUM, RACK_ROOT_FILLET, inv, pitch_tooth_thickness_mm,
+                                                tip_radius_mm)
 
 
 # --------------------------------------------------------------------------

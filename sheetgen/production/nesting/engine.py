@@ -251,7 +251,8 @@ def _result(items, lib: ShapeLibrary, sheets, unplaced_items, sheet_size, margin
             turned = turned_cache.get(tk)
             if turned is None:
                 turned = turned_cache[tk] = rotate_ccw(items[item].polygon, sh.angle_deg)
-            poly = shapely.transform(turned, lambda c, o=np.array([x, y]): c + o)
+            offset = np.array([x, y])
+            poly = shapely.transform(turned, lambda c: c + offset)
             out.append(PlacedPart(item, copies[item], float(x), float(y), sh.angle_deg, poly))
             copies[item] += 1
         per_sheet.append(out)

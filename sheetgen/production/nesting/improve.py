@@ -35,7 +35,7 @@ def initial_orders(lib: ShapeLibrary, part_items: list[int]) -> list[tuple]:
     qty = [0] * n_items
     for i in part_items:
         qty[i] += 1
-    first = {}
+    first: dict[int, int] = {}
     for p, i in enumerate(part_items):
         first.setdefault(i, p)
     keys = [
