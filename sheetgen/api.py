@@ -24,7 +24,7 @@ if TYPE_CHECKING:
     from sheetgen.pipeline import BuildResult, NestRun
     from sheetgen.design.part import Kit
     from sheetgen.design.spec import Spec
-    from sheetgen.mechanics.check import BalanceReport
+    from sheetgen.mechanics.balance_report import BalanceReport
     from sheetgen.production.cutplan import CutPlan
     from sheetgen.production.runs import PlacedSheet
 

@@ -13,7 +13,7 @@ from typing import TYPE_CHECKING, Any
 from sheetgen.design.part import Kit
 from sheetgen.design.spec import Spec
 from sheetgen.drive.gears import GearPair
-from sheetgen.mechanics.check import BalanceReport
+from sheetgen.mechanics.balance_report import BalanceReport
 from sheetgen.production.cutplan import CutPlan
 from sheetgen.production.nesting import NestItem, NestResult
 from sheetgen.production.runs import PlacedSheet

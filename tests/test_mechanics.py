@@ -21,7 +21,9 @@ from sheetgen.design import spec as spec_mod
 from sheetgen.errors import ParameterError
 from sheetgen.mechanics.teeth import lewis_form_factor
 from sheetgen.mechanics import loads, materials
-from sheetgen.mechanics.check import balance_check, render_text, wind_plate_footprint
+from sheetgen.mechanics.balance_text import render_text
+from sheetgen.mechanics.check import balance_check
+from sheetgen.mechanics.load_geometry import wind_plate_footprint
 from sheetgen.mechanics.massprops import counterweight_at_arm, mass_properties, part_mass_each_kg
 from sheetgen.design.part import Component, Kit, Part
 from sheetgen.geometry.placement import place, rotation_x

@@ -421,9 +421,9 @@ def test_large_run_is_cut_from_repeated_patterns(monkeypatch):
     # Hand count: 10 mm squares, spacing 0, on a 25 x 25 sheet: 2 x 2 per sheet
     # (3 x 10 > 25), so 40 squares need exactly 10 sheets, all alike; the area
     # bound is ceil(40 x 100 / 625) = 7 (no square is over half the sheet).
-    from sheetgen.production.nesting import engine
+    from sheetgen.production.nesting import batches
 
-    monkeypatch.setattr(engine, "BATCH_PARTS", 8)
+    monkeypatch.setattr(batches, "BATCH_PARTS", 8)
     items = [NestItem("sq", box(0, 0, 10, 10), 20, (0.0,)), NestItem("sq2", box(0, 0, 10, 10), 20, (0.0,))]
     result = nest(items, sheet_mm=(25, 25), effort=1, time_limit_s=600)
     verify(result, items)

@@ -30,7 +30,8 @@ def command(params: str, overrides: tuple[str, ...], as_json: bool) -> None:
     (for example ASCE 7, EN 1991-1-4) and a licensed engineer.
     """
     from sheetgen.design.kit import build_kit
-    from sheetgen.mechanics.check import balance_check, render_text
+    from sheetgen.mechanics.balance_text import render_text
+    from sheetgen.mechanics.check import balance_check
     from sheetgen.design.solver import derived_lines, derived_values
     from sheetgen.design.spec import load_spec
 

@@ -174,7 +174,7 @@ def command(params, kits, extras, sheet, strip_width, rotations, spacing, margin
     size = result.sheet_size_mm
     with staged_dir(out_dir) as tmp:
         files = write_sheets(tmp, sheets, size, margin, patterns=sheet_patterns(result), jobs=jobs)
-    from sheetgen.production.nesting.engine import EFFORT_PER_SECOND
+    from sheetgen.production.nesting.budget import EFFORT_PER_SECOND
 
     used_effort = effort if effort is not None else round(time_limit * EFFORT_PER_SECOND, 6)
     summary = nest_summary(result) | {"kerf_mm": kerf, "seed": seed, "effort": used_effort, "time_limit_s": time_limit,

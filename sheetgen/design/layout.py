@@ -13,7 +13,7 @@ panel faces the zenith. Seen along +x the chassis stacks up as:
       the motor behind it, its pinion meshing with the wheel
 
 All the numbers the part factories share are computed here, once, from a
-resolved Spec (every derived key a number: see sheetgen/design/solver.py, which
+resolved Spec (every derived key a number: see sheetgen/design/solver/, which
 chooses them). Values pinned by hand that cannot work raise ParameterError.
 """
 

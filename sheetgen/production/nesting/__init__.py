@@ -1,7 +1,8 @@
 """Nesting parts on sheet stock or a strip: see :func:`nest` and :func:`verify`."""
 
 from sheetgen.production.nesting.bound import lower_bound_sheets
-from sheetgen.production.nesting.engine import RunTooLarge, check_ceiling, estimate, nest
+from sheetgen.production.nesting.ceiling import RunTooLarge, check_ceiling, estimate
+from sheetgen.production.nesting.engine import nest
 from sheetgen.production.nesting.model import NestItem, NestResult, PlacedPart, sheet_patterns
 from sheetgen.production.nesting.verify import verify
 

@@ -1,0 +1,89 @@
+"""Sheet mode stage by stage: a run cut into batches whose full sheets are repeated as patterns.
+
+Large runs: when every quantity shares a factor (kits), the run is cut into
+batches of whole units of at most :data:`BATCH_PARTS` parts; a batch is nested
+with the full search, its sheets but the last (the well-filled ones) are kept
+as *patterns* and repeated as often as the remaining parts allow, and what is
+left is nested again the same way. Repeated patterns cost one search, the
+shop cuts one program many times, and memory stays bounded.
+"""
+
+from __future__ import annotations
+
+import math
+import time
+
+from sheetgen.production.nesting.budget import Budget, StageClock, progress_of
+from sheetgen.production.nesting.improve import sheet_search
+
+
+NON_LAST_SHARE = 4           # a batch that is repeated gets 1/NON_LAST_SHARE of what is left of the budget
+BATCH_PARTS = 440            # parts in one batch of a large run (about 20 demo kits)
+
+
+def sheet_run(lib, counts, usable, lower, work, budget, rng, clock, jobs):
+    """Sheets for ``counts`` copies of each item: batches, patterns repeated, the rest nested (module doc).
+
+    Each stage gets its share of the work budget and the same share of the
+    wall-clock ceiling. Returns (sheets as lists of (item, shape id, px, py),
+    unplaced items, stage budgets, stage clocks)."""
+    remaining = list(counts)
+    sheets: list[list[tuple]] = []
+    unplaced: list[int] = []
+    stages: list[Budget] = []
+    clocks: list[StageClock] = []
+    total0 = sum(counts)
+    while True:
+        total = sum(remaining)
+        if total == 0:
+            break
+        left = max(0, budget - work.units)
+        last = total <= BATCH_PARTS
+        batch = list(remaining) if last else _batch(remaining)
+        share = left if last else left // NON_LAST_SHARE
+        stage = Budget(work, work.units + share)
+        stages.append(stage)
+        now = time.monotonic()
+        left_s = max(0.0, clock.deadline - now)
+        stage_clock = StageClock(clock, now + (left_s if last or left == 0 else left_s * share / left))
+        clocks.append(stage_clock)
+        f0 = 1.0 - total / total0
+        f1 = 1.0 - (total - sum(batch)) / total0 if not last else 1.0
+        part_items = [i for i, q in enumerate(batch) for _ in range(q)]
+        # a batch may use one sheet more than its share of the whole run's bound
+        share_lower = 1 if not last else max(1, lower - len(sheets))
+        placements, unplaced_parts, n_sheets = sheet_search(
+            lib, part_items, usable, share_lower, stage, rng, stage_clock,
+            progress_of(clock, work, work.units, share, f0, f1), compact=last, jobs=jobs)
+        got = [[] for _ in range(n_sheets)]
+        for p, si, sid, px, py in placements:
+            got[si].append((part_items[p], sid, px, py))
+        if last:
+            sheets.extend(got)
+            unplaced.extend(part_items[p] for p in unplaced_parts)
+            break
+        block = got[:-1] if len(got) > 1 else got
+        used = [0] * len(counts)
+        for sheet in block:
+            for item, *_ in sheet:
+                used[item] += 1
+        times = min(remaining[i] // used[i] for i in range(len(counts)) if used[i])
+        for _ in range(times):
+            sheets.extend(block)
+        remaining = [r - times * u for r, u in zip(remaining, used)]
+    return sheets, unplaced, stages, clocks
+
+
+def _batch(remaining: list[int]) -> list[int]:
+    """A batch of at most BATCH_PARTS parts: whole units when the counts share
+    a factor (kits), else the same share of every item."""
+    total = sum(remaining)
+    g = 0
+    for r in remaining:
+        g = math.gcd(g, r)
+    unit = [r // g for r in remaining]
+    per_unit = sum(unit)
+    if g > 1 and per_unit <= BATCH_PARTS:
+        m = max(1, BATCH_PARTS // per_unit)
+        return [u * m for u in unit]
+    return [min(r, max(1 if r else 0, r * BATCH_PARTS // total)) for r in remaining]
