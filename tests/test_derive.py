@@ -60,7 +60,7 @@ def test_every_derived_key_names_a_rule_and_every_rule_sets_derived_keys():
 
 
 def test_reference_table_marks_derived_keys_with_their_rule():
-    from sheetgen.design.spec import reference_markdown
+    from sheetgen.design.schema_docs import reference_markdown
 
     table = reference_markdown()
     row = next(line for line in table.splitlines() if line.startswith("| `axle.height`"))

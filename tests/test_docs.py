@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from sheetgen.design.spec import reference_markdown
+from sheetgen.design.schema_docs import reference_markdown
 from tests.conftest import ROOT
 
 

@@ -9,7 +9,8 @@ from pathlib import Path
 import pytest
 
 from sheetgen.errors import InputFileError, ParameterError
-from sheetgen.design.spec import SCHEMA, load_spec, parse_override, reference_markdown, spec_from_dict
+from sheetgen.design.schema_docs import reference_markdown
+from sheetgen.design.spec import SCHEMA, load_spec, parse_override, spec_from_dict
 from tests.conftest import DEMO, PARAMS
 
 
@@ -226,7 +227,8 @@ def test_typed_sections_are_generated_from_the_schema():
     import typing
 
     from sheetgen.design import sections
-    from sheetgen.design.spec import SCHEMA, SECTIONS, section_class_name, sections_source
+    from sheetgen.design.schema_docs import section_class_name, sections_source
+    from sheetgen.design.spec import SCHEMA, SECTIONS
 
     path = Path(sections.__file__)
     assert path.read_text(encoding="utf-8") == sections_source(), \
