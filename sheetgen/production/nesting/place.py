@@ -41,6 +41,7 @@ import pyclipper
 import shapely
 from shapely.geometry import Polygon
 
+from sheetgen.errors import GeometryBug
 from sheetgen.production.nesting.nfp import clearance_outline, fast_nfp_paths, shape_of
 
 # Placement rules (y weight, width weight): the score of a reference point
@@ -169,7 +170,7 @@ ClipperPaths = list[list[list[int]]]
 # A shape's feasible region on a sheet: (paths, all their vertices as an (n, 2)
 # int64 array, their bounding box in grid units, placed parts already cut from it);
 # when nothing fits the paths are empty and vertices and box are None.
-Region = tuple[ClipperPaths, "np.ndarray | None", "tuple[int, int, int, int] | None", int]
+Region = tuple[ClipperPaths, np.ndarray | None, tuple[int, int, int, int] | None, int]
 
 
 class Sheet:
@@ -260,8 +261,8 @@ class Sheet:
         s = xy[:, 0] + y_weight * xy[:, 1]
         k = int(np.argmin(s))
         r = self._fit_rect(self.lib.shapes[shape_id])
-        if r is None:  # cannot happen: the region is not empty, so the shape fits the sheet
-            return None
+        if r is None:
+            raise GeometryBug(f"shape {shape_id}: a free region on a sheet it does not fit")
         px = min(max(int(xy[k, 0]), r[0]), r[2])
         py = min(max(int(xy[k, 1]), r[1]), r[3])
         return float(s[k]) / self.lib.scale, px, py
