@@ -71,14 +71,15 @@ def interrupt_in_chain(exc: BaseException) -> int | None:
     """The signal behind ``exc`` when an interrupt caused it: one in its chain, or
     one received by :func:`stop_on_signal` (a C extension that fails to load
     because Ctrl-C hit the import of its dependency raises a bare ImportError)."""
-    seen = set()
-    while exc is not None and id(exc) not in seen:
-        seen.add(id(exc))
-        if isinstance(exc, KeyboardInterrupt):
+    seen: set[int] = set()
+    link: BaseException | None = exc
+    while link is not None and id(link) not in seen:
+        seen.add(id(link))
+        if isinstance(link, KeyboardInterrupt):
             return 2
-        if isinstance(exc, Interrupted):
-            return exc.signum
-        exc = exc.__cause__ or exc.__context__
+        if isinstance(link, Interrupted):
+            return link.signum
+        link = link.__cause__ or link.__context__
     return _received[0] if _received else None
 
 

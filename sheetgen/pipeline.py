@@ -11,6 +11,7 @@ from dataclasses import dataclass, replace
 from typing import TYPE_CHECKING, Any
 
 from sheetgen.design.part import Kit
+from sheetgen.errors import GeometryBug
 from sheetgen.design.spec import Spec
 from sheetgen.drive.gears import GearPair
 from sheetgen.mechanics.balance_report import BalanceReport
@@ -133,6 +134,8 @@ def run_build(spec: Spec, kits: int, progress: Any = None, jobs: int | None = No
     kit = build_kit(spec)
     balance = balance_check(kit, spec)
     drive = kit.drive
+    if drive is None:  # build_kit always cuts the wheel and pinion from a pair
+        raise GeometryBug("the kit carries no drive gear pair")
     run = nest_run(spec, kit, kits, progress, jobs)
     result, placed, patterns = run.result, run.sheets, run.patterns
     sheet_mm = (spec.sheet.width_mm, spec.sheet.height_mm)

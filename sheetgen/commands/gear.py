@@ -55,8 +55,11 @@ def command(module_mm, teeth, pressure_angle_deg, shift, backlash_mm, bore_mm, b
     included; the kerf is compensated exactly (the cut flanks are involutes
     of the same base circle). The sizes printed are those of the finished
     gear."""
+    from shapely.geometry import Polygon
+
     from sheetgen.drive.gears import GearSpec, Hub, gear_blank
     from sheetgen.drive.involute import DEFAULT_CHORD_TOL_MM
+    from sheetgen.errors import GeometryBug
     from sheetgen.io.dxf import write_cut_dxf
     from sheetgen.io.output import check_output_file, staged_file
 
@@ -67,14 +70,17 @@ def command(module_mm, teeth, pressure_angle_deg, shift, backlash_mm, bore_mm, b
                     hub=Hub(bore_mm=bore_mm, bore_shape=bore_shape, across_flats_mm=across_flats_mm,
                             lightening=lightening))
     g = gear_blank(spec, kerf_mm, tol, labels=OPTION_LABELS)
+    polygon = g.polygon
+    if not isinstance(polygon, Polygon):  # the blank's field is typed loosely; it is always one polygon
+        raise GeometryBug(f"gear blank is a {type(polygon).__name__}, not one polygon")
 
     with staged_file(output) as tmp:
-        write_cut_dxf(tmp, [g.polygon], circles=g.round_holes_mm, circle_offset_mm=kerf_mm / 2.0,
+        write_cut_dxf(tmp, [polygon], circles=g.round_holes_mm, circle_offset_mm=kerf_mm / 2.0,
                       dxf_version=dxf_version)
 
     for w in g.warnings:
         click.echo(f"warning: {w}", err=True)
-    n_vertices = len(g.polygon.exterior.coords) - 1
+    n_vertices = len(polygon.exterior.coords) - 1
     pins = "opposite spaces" if teeth % 2 == 0 else "spaces nearest opposite"
     rows = [
         ("pitch diameter", g.pitch_diameter_mm, ""),

@@ -11,6 +11,7 @@ def _kerf_range() -> tuple[float, float]:
     from sheetgen.design.spec import SCHEMA_BY_PATH
 
     key = SCHEMA_BY_PATH["laser.kerf"]
+    assert key.lo is not None and key.hi is not None  # the schema bounds this key on both sides
     return key.lo, key.hi
 
 

@@ -23,6 +23,7 @@ from shapely.geometry import MultiPoint, Polygon
 
 from sheetgen.design.part import Kit, Part
 from sheetgen.geometry.placement import Placement
+from sheetgen.geometry.shapes import one_polygon
 
 SWEEP_STEP_DEG = 1.0
 
@@ -60,7 +61,8 @@ def silhouette(part: Part, placement: Placement, index: int) -> Silhouette:
         a = [m[1, 0], m[1, 1], m[2, 0], m[2, 1], t[1], t[2]]
         shape = affinity.affine_transform(part.outline, a)
     else:
-        shape = MultiPoint([tuple(p) for p in kit_pts[:, 1:]]).convex_hull
+        # both faces are among the points, so the hull has an area (the part has a thickness)
+        shape = one_polygon(MultiPoint([tuple(p) for p in kit_pts[:, 1:]]).convex_hull, f"{part.name} silhouette")
     return Silhouette(f"{part.name}#{index + 1}", shape, x_range, placement.rotating)
 
 
@@ -109,7 +111,10 @@ def sweep_clearance(silhouettes: list[Silhouette], angles_deg: tuple[float, floa
             break
         c, s = math.cos(math.radians(ang)), math.sin(math.radians(ang))
         turn = np.array([[c, s], [-s, c]])  # row vectors: (y, z) -> (c y - s z, s y + c z)
-        moved = shapely.transform(turning_geoms, lambda yz, turn=turn: yz @ turn)[index[active]]
+        def turned(yz: np.ndarray, turn: np.ndarray = turn) -> np.ndarray:
+            return yz @ turn
+
+        moved = shapely.transform(turning_geoms, turned)[index[active]]
         dist = shapely.distance(moved, fixed_geoms[active])
         j = int(np.argmin(dist))
         k = int(active[j])

@@ -197,7 +197,7 @@ def _check_fits_sheet(spec, kit: Kit) -> None:
     s = spec.sheet
     uw, uh = s.width_mm - 2 * s.margin_mm, s.height_mm - 2 * s.margin_mm
     for part in kit.parts:
-        cut = cut_outline(part.fit_outline, spec.laser.kerf_mm)
+        cut = cut_outline(part.outline_to_cut, spec.laser.kerf_mm)
         ok = False
         for angle in part.rotations_deg:
             x0, y0, x1, y1 = shapely.affinity.rotate(cut, angle, origin=(0, 0)).bounds

@@ -109,7 +109,7 @@ def compute_layout(spec, centre_distance_mm: float) -> Layout:
     rib_x = W / 2 + (b - ledge) / 2
     rib_half_y = Hp / 2 + b - 2.0
     bolt = spec.frame.bolt_diameter_mm
-    bolt_points = ()
+    bolt_points: tuple[tuple[float, float], ...] = ()
     if bolt > 0:
         yb = Hp / 2 + b / 2
         bolt_points = tuple((sx * W / 4, sy * yb) for sx in (-1, 1) for sy in (-1, 1))

@@ -15,11 +15,15 @@ simple solids (box, cylinder along x, point) so that mass properties are exact.
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from typing import TYPE_CHECKING
 
 import numpy as np
 from shapely.geometry import Polygon
 
 from sheetgen.geometry.placement import Placement, rotation_x, vec_tuple
+
+if TYPE_CHECKING:
+    from sheetgen.drive.gears import GearPair
 
 # Layer names used for marks; the cut layer is always "CUT".
 LAYER_CUT = "CUT"
@@ -46,9 +50,11 @@ class Mark:
         """This mark turned counter-clockwise by ``angle_deg`` about (0, 0), then moved."""
         from sheetgen.geometry.shapes import turn_point
 
-        pts = tuple(tuple(round(v, 6) + 0.0 for v in turn_point(x, y, angle_deg, dx_mm, dy_mm))
-                    for x, y in self.points)
-        return Mark(self.layer, self.kind, pts, self.text, self.height_mm, (self.angle_deg + angle_deg) % 360.0)
+        pts = []
+        for x, y in self.points:
+            tx, ty = turn_point(x, y, angle_deg, dx_mm, dy_mm)
+            pts.append((round(tx, 6) + 0.0, round(ty, 6) + 0.0))
+        return Mark(self.layer, self.kind, tuple(pts), self.text, self.height_mm, (self.angle_deg + angle_deg) % 360.0)
 
 
 @dataclass(frozen=True)
@@ -113,6 +119,12 @@ class Part:
             object.__setattr__(self, "fit_outline", self.outline)
 
     @property
+    def outline_to_cut(self) -> Polygon:
+        """The outline kerf compensation applies to: ``fit_outline``, which
+        defaults to ``outline`` (the field is typed optional only for that default)."""
+        return self.outline if self.fit_outline is None else self.fit_outline
+
+    @property
     def area_mm2(self) -> float:
         return float(self.outline.area)
 
@@ -166,8 +178,8 @@ class Kit:
     joints: tuple[Joint, ...] = ()
     # Named figures the factories decided (axle height, sweep radius, ...), mm.
     figures: tuple[tuple[str, float], ...] = field(default=())
-    # The drive gear pair (sheetgen.drive.gears.GearPair) the wheel and pinion were cut from.
-    drive: object = None
+    # The drive gear pair the wheel and pinion were cut from (None when a Kit is made without one).
+    drive: GearPair | None = None
 
     def part(self, name: str) -> Part:
         for p in self.parts:

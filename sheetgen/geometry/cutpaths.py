@@ -110,7 +110,7 @@ def closed_rings(geo: CutGeometry) -> Joined:
             b = ends[tips[1]] if len(tips) > 1 else a
             open_chains.append(((float(a[0]), float(a[1])), (float(b[0]), float(b[1])), open_ids[comp[0]]))
             continue
-        pieces = []
+        pieces: list[np.ndarray] = []
         e_, at = comp[0], int(node[2 * comp[0]])
         seen = set()
         while e_ not in seen:
@@ -140,6 +140,7 @@ def cluster_points(points: np.ndarray, tol: float) -> np.ndarray:
     if n < 2:
         return labels
     geoms = shapely.points(points)
+    assert isinstance(geoms, np.ndarray)  # (n, 2) coordinates give an array of points, never one
     left, right = shapely.STRtree(geoms).query(geoms, predicate="dwithin", distance=tol)
     keep = left < right
     left, right = left[keep], right[keep]

@@ -7,11 +7,15 @@ panel faces the zenith; the turning frame turns about x.
 from __future__ import annotations
 
 import math
+from collections.abc import Sequence
 from dataclasses import dataclass
 
 import numpy as np
 
 from sheetgen.errors import GeometryBug
+
+Vec3 = tuple[float, float, float]
+Mat3 = tuple[Vec3, Vec3, Vec3]  # row by row
 
 
 @dataclass(frozen=True)
@@ -22,8 +26,8 @@ class Placement:
     whether this instance turns with the panel frame about the axle (x).
     """
 
-    rotation: tuple[tuple[float, float, float], tuple[float, float, float], tuple[float, float, float]]
-    translation_mm: tuple[float, float, float]
+    rotation: Mat3
+    translation_mm: Vec3
     rotating: bool = False
 
     @property
@@ -47,13 +51,24 @@ class Placement:
         return Placement(_mat_tuple(r), vec_tuple(t), True)
 
 
-def _mat_tuple(m: np.ndarray):
-    m = np.where(np.abs(m) < 1e-15, 0.0, m)
-    return tuple(tuple(float(v) for v in row) for row in m)
+def _mat_tuple(m: np.ndarray) -> Mat3:
+    return mat3(np.where(np.abs(m) < 1e-15, 0.0, m))
 
 
-def vec_tuple(v: np.ndarray):
-    return tuple(float(x) for x in v)
+def vec3(v: Sequence[float] | np.ndarray) -> Vec3:
+    """Three plain floats from any sequence of three numbers (a numpy vector, a tuple)."""
+    x, y, z = v
+    return (float(x), float(y), float(z))
+
+
+def mat3(m: Sequence[Sequence[float]] | np.ndarray) -> Mat3:
+    """A 3x3 matrix as three rows of plain floats."""
+    r0, r1, r2 = m
+    return (vec3(r0), vec3(r1), vec3(r2))
+
+
+def vec_tuple(v: np.ndarray) -> Vec3:
+    return vec3(v)
 
 
 def rotation_x(angle_deg: float) -> np.ndarray:

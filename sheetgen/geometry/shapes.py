@@ -6,6 +6,7 @@ import math
 
 from shapely import set_precision
 from shapely.geometry import MultiPolygon, Polygon, box
+from shapely.geometry.base import BaseGeometry
 from shapely.ops import unary_union
 
 from sheetgen.errors import GeometryBug
@@ -23,6 +24,15 @@ def segments_for_arc(radius_mm: float, sweep_rad: float = 2 * math.pi, tol_mm: f
     return max(4, math.ceil(sweep_rad / step))
 
 
+def one_polygon(geom: BaseGeometry, what: str) -> Polygon:
+    """``geom`` as a Polygon, for operations whose result is a polygon by
+    construction (a convex hull of an area, a disc cut by a box) but that
+    shapely types as any geometry; anything else is a bug in the caller."""
+    if not isinstance(geom, Polygon):
+        raise GeometryBug(f"{what}: expected one polygon, got {geom.geom_type}")
+    return geom
+
+
 def disc(cx: float, cy: float, r: float, tol_mm: float = CHORD_TOL_MM) -> Polygon:
     """A circle as a polygon whose vertices lie on the circle."""
     n = segments_for_arc(r, tol_mm=tol_mm)
@@ -35,7 +45,7 @@ def rect(x0: float, y0: float, x1: float, y1: float) -> Polygon:
 
 
 def hull(*geoms) -> Polygon:
-    return unary_union(list(geoms)).convex_hull
+    return one_polygon(unary_union(list(geoms)).convex_hull, "convex hull")
 
 
 def clean(geom, what: str) -> Polygon:
@@ -59,4 +69,5 @@ def d_shape(cx: float, cy: float, diameter_mm: float, across_flat_mm: float) -> 
     """A round hole with one flat (D profile) for a motor shaft; the flat is on +y."""
     r = diameter_mm / 2
     flat_y = cy + across_flat_mm - r
-    return disc(cx, cy, r).intersection(rect(cx - r - 1, cy - r - 1, cx + r + 1, flat_y))
+    return one_polygon(disc(cx, cy, r).intersection(rect(cx - r - 1, cy - r - 1, cx + r + 1, flat_y)),
+                       "D-shaped hole")

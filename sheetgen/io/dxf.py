@@ -17,6 +17,7 @@ from pathlib import Path
 from shapely.geometry import Polygon
 
 from sheetgen.design.part import LAYER_CUT, LAYER_GUIDE, LAYER_LABEL, Mark
+from sheetgen.errors import GeometryBug
 from sheetgen.geometry.contour import Contour, polygon_contours
 
 DXF_VERSIONS = {"R12": "R12", "R2000": "R2000"}
@@ -52,18 +53,22 @@ def build_document(contours: Sequence[Contour], marks: Sequence[Mark] = (), dxf_
     """An ezdxf document holding the contours (in order) and the marks."""
     doc = _new_doc(dxf_version)
     msp = doc.modelspace()
-    attribs = {"layer": LAYER_CUT}
+    attribs: dict[str, str | float] = {"layer": LAYER_CUT}
     for c in contours:
-        start = getattr(c, "start", None) if c.is_circle else None
-        lead_in = getattr(c, "lead_in", None)
-        if c.is_circle and start is None and lead_in is None:
-            cx, cy, r = c.circle
+        circle = c.circle
+        start: tuple[float, float] | None = getattr(c, "start", None) if circle is not None else None
+        lead_in: tuple[float, float] | None = getattr(c, "lead_in", None)
+        if circle is not None and start is None and lead_in is None:
+            cx, cy, r = circle
             msp.add_circle((cx, cy), r, dxfattribs=attribs)
             continue
         closed = lead_in is None
-        if c.is_circle:
+        pts: list[tuple[float, float, float]]
+        if circle is not None:
             # two half circles from the planned start point (bulge 1 = a half circle)
-            cx, cy, _ = c.circle
+            if start is None:
+                raise GeometryBug("a circle with a lead-in has no planned start point")
+            cx, cy, _ = circle
             sx, sy = start
             pts = [(sx, sy, 1.0), (_r6(2 * cx - sx), _r6(2 * cy - sy), 1.0)]
             if not closed:
@@ -72,7 +77,7 @@ def build_document(contours: Sequence[Contour], marks: Sequence[Mark] = (), dxf_
             pts = [(x, y, 0.0) for x, y in c.points]
             if not closed:
                 pts.append(pts[0])
-        if not closed:
+        if lead_in is not None:  # an open path
             # the lead-in belongs to its contour: one path from the pierce point in and round
             pts.insert(0, (_r6(lead_in[0]), _r6(lead_in[1]), 0.0))
         if dxf_version == "R12":
@@ -88,11 +93,11 @@ def build_document(contours: Sequence[Contour], marks: Sequence[Mark] = (), dxf_
             text = msp.add_text(m.text, height=m.height_mm, dxfattribs=attribs)
             text.set_placement((round(x, 6), round(y, 6)), align=_middle_center())
         else:
-            pts = [(round(x, 6), round(y, 6)) for x, y in m.points]
+            mark_pts = [(round(x, 6), round(y, 6)) for x, y in m.points]
             if dxf_version == "R12":
-                msp.add_polyline2d(pts, dxfattribs={"layer": m.layer})
+                msp.add_polyline2d(mark_pts, dxfattribs={"layer": m.layer})
             else:
-                msp.add_lwpolyline(pts, dxfattribs={"layer": m.layer})
+                msp.add_lwpolyline(mark_pts, dxfattribs={"layer": m.layer})
     return doc
 
 

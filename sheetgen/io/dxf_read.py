@@ -267,9 +267,10 @@ def read_cut_file(path: str | Path, layer: str | None = None) -> CutGeometry:
                 continue
             if kind == "LINE":
                 s, t = e.dxf.start, e.dxf.end
-                p, q = (float(s[0]) * factor, float(s[1]) * factor), (float(t[0]) * factor, float(t[1]) * factor)
-                segments.append(Segment("line", (p, q), index))
-                add(np.array([p, q]), False, name)
+                a = (float(s[0]) * factor, float(s[1]) * factor)
+                b = (float(t[0]) * factor, float(t[1]) * factor)
+                segments.append(Segment("line", (a, b), index))
+                add(np.array([a, b]), False, name)
                 continue
             if kind == "LWPOLYLINE" and _is_flat_extrusion(e):
                 pts = np.asarray(e.get_points("xyb"), dtype=float).reshape(-1, 3)
@@ -287,13 +288,13 @@ def read_cut_file(path: str | Path, layer: str | None = None) -> CutGeometry:
             continue
         here = _pt(p.start, factor)
         for cmd in p.commands():
-            if cmd.type == ezpath.Command.MOVE_TO:
+            if isinstance(cmd, ezpath.MoveTo):
                 here = _pt(cmd.end, factor)
                 continue
             end = _pt(cmd.end, factor)
-            if cmd.type == ezpath.Command.LINE_TO:
+            if isinstance(cmd, ezpath.LineTo):
                 segments.append(Segment("line", (here, end), index))
-            elif cmd.type == ezpath.Command.CURVE3_TO:
+            elif isinstance(cmd, ezpath.Curve3To):
                 segments.append(Segment("curve", (here, _pt(cmd.ctrl, factor), end), index))
             else:
                 segments.append(Segment("curve", (here, _pt(cmd.ctrl1, factor), _pt(cmd.ctrl2, factor), end), index))

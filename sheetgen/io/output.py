@@ -66,7 +66,8 @@ _REASONS = {
 
 def os_reason(exc: OSError) -> str:
     """A short reason for an OS error, in words."""
-    return _REASONS.get(exc.errno, exc.strerror or exc.__class__.__name__)
+    fallback = exc.strerror or exc.__class__.__name__
+    return fallback if exc.errno is None else _REASONS.get(exc.errno, fallback)
 
 
 # ---------------------------------------------------------------------------

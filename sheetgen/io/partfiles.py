@@ -33,7 +33,7 @@ class PartDrawing:
 
 
 def part_drawing(part: Part, kerf_mm: float) -> PartDrawing:
-    cut = cut_outline(part.fit_outline, kerf_mm)
+    cut = cut_outline(part.outline_to_cut, kerf_mm)
     if not cut.is_valid or cut.is_empty:
         raise GeometryBug(f"part {part.name}: cut outline is not valid")
     dx, dy = -cut.bounds[0], -cut.bounds[1]

@@ -69,7 +69,7 @@ def write_sheets(out_dir: Path, sheets: Sequence[PlacedSheet], size_mm: tuple[fl
         contours = ordered_contours[k] if ordered_contours is not None else sheets[k].contours
         args.append((contours, sheets[k], size_mm, margin_mm, dxf_version))
     drawn = map_jobs(_drawn, args, jobs)
-    names: list[str | None] = [None] * len(sheets)
+    names: dict[int, str] = {}  # sheet position -> file name; the groups cover every position
     for g, (dxf, svg) in zip(groups, drawn):
         first_title = sheet_title(sheets[g[0]])
         for k in g:
@@ -79,4 +79,4 @@ def write_sheets(out_dir: Path, sheets: Sequence[PlacedSheet], size_mm: tuple[fl
             text = svg if k == g[0] else svg.replace(first_title, sheet_title(sheet), 1)
             (out_dir / f"{name}.svg").write_text(text, encoding="utf-8")
             names[k] = f"{name}.dxf"
-    return names
+    return [names[k] for k in range(len(sheets))]

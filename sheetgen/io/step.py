@@ -169,7 +169,7 @@ def _paint_order(items, e, right, up) -> list[int]:
     """Back to front: where two silhouettes overlap, the one the sight line
     enters first is in front; the rest (and cycles) by the centres' depth."""
     n = len(items)
-    behind = {i: set() for i in range(n)}  # i -> the items drawn before i
+    behind: dict[int, set[int]] = {i: set() for i in range(n)}  # i -> the items drawn before i
     sils = [it[4] for it in items]
     tree = shapely.STRtree(sils)
     for i in range(n):
@@ -189,7 +189,8 @@ def _paint_order(items, e, right, up) -> list[int]:
                 behind[i].add(j)
             else:
                 behind[j].add(i)
-    order, done = [], set()
+    order: list[int] = []
+    done: set[int] = set()
     rank = sorted(range(n), key=lambda i: (round(items[i][0], 6), items[i][1], items[i][2]))
     while len(order) < n:
         ready = [i for i in rank if i not in done and behind[i] <= done]

@@ -222,7 +222,7 @@ def tipping_figures(wind_force_N: float, force_height_mm: float, kit_mass_kg: fl
     u = uplift_lever_mm * 1e-3
     # |sin t| h + cos t u peaks at t = +-atan(h / u) (or at the range ends)
     peak = math.degrees(math.atan2(h, u))
-    best_t, best_m = None, -math.inf
+    best_t, best_m = lo, -math.inf  # lo is always in range, so the loop sets both
     for t in (lo, hi, 0.0, peak, -peak):
         if lo - 1e-12 <= t <= hi + 1e-12:
             tr = math.radians(t)

@@ -123,7 +123,9 @@ def integrate(f: Callable[[float, np.ndarray], np.ndarray], y0, t_end: float, *,
     h = min(h0, h_max, t_end)
     k1 = f(t, y)
     steps = rejected = 0
-    ts, ys = ([0.0], [y.copy()]) if record else (None, None)
+    # the lists grow only with record=True; otherwise they keep the start and are dropped
+    ts: list[float] = [0.0]
+    ys: list[np.ndarray] = [y.copy()]
     atol = np.broadcast_to(np.asarray(atol, dtype=float), y.shape)
     while t < t_end:
         if steps >= max_steps:
@@ -327,7 +329,8 @@ def run_pulse(drive: Drive, load: AxleLoad, capacitance_F: float, voltage_V: flo
 
     x_end = math.radians(travel_deg)
     # the stop event (w falling to 0) is armed after the start, where w = 0 and w' > 0
-    events = (("stopped", lambda _t, y: y[2] if _t > 0.0 else 1.0),)
+    events: tuple[tuple[str, Callable[[float, np.ndarray], float]], ...] = (
+        ("stopped", lambda _t, y: y[2] if _t > 0.0 else 1.0),)
     if math.isfinite(x_end):
         events += (("travel", lambda _t, y: x_end - y[1]),)
     # time scales for the first step: electrical-mechanical tau = J R / (k N)^2
@@ -350,6 +353,7 @@ def run_pulse(drive: Drive, load: AxleLoad, capacitance_F: float, voltage_V: flo
     traj = None
     if record:
         ys = sol.ys
+        assert ys is not None and sol.ts is not None  # integrate(record=True) keeps both
         i = (ys[:, 0] - k * N * ys[:, 2]) / R
         traj = {"t_s": sol.ts, "v_V": ys[:, 0], "theta_deg": np.degrees(th0 + s * ys[:, 1]),
                 "omega_rad_s": ys[:, 2], "i_A": i}

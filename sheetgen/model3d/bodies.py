@@ -16,7 +16,7 @@ from sheetgen.errors import GeometryBug, ParameterError
 from sheetgen.geometry.shapes import GRID_MM, disc, rect
 from sheetgen.design.kit import MESHING
 from sheetgen.design.part import Component, Kit
-from sheetgen.geometry.placement import Placement, place
+from sheetgen.geometry.placement import Placement, mat3, place
 
 
 CONTACT_TOL_MM = 1e-3  # closer than this counts as touching
@@ -109,7 +109,7 @@ def spun(placement: Placement, angle_deg: float) -> Placement:
     c, s = math.cos(a), math.sin(a)
     rz = np.array([[c, -s, 0.0], [s, c, 0.0], [0.0, 0.0, 1.0]])
     r = placement.matrix @ rz
-    return Placement(tuple(tuple(float(v) for v in row) for row in r), placement.translation_mm, placement.rotating)
+    return Placement(mat3(r), placement.translation_mm, placement.rotating)
 
 
 def mesh_turn_deg(wheel_teeth: int, pinion_teeth: int, wheel_at: Placement, pinion_at: Placement) -> float:

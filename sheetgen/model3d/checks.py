@@ -11,6 +11,7 @@ import numpy as np
 from shapely.geometry import Polygon
 
 from sheetgen.design.part import Kit
+from sheetgen.geometry.placement import vec3
 from sheetgen.model3d.bodies import CONTACT_TOL_MM, MASS_TOL, Prism, SHARED_VOLUME_TOL_MM3, SWEEP_STEP_DEG, _aabb_gap, _aabb_overlap, _in_frame_of, _mesh_pairs, mesh_turns_deg, parallel_shared_volume_mm3, spun, sweep_angles
 from sheetgen.model3d.measures import _Measures
 from sheetgen.model3d.records import AssemblyReport, Interference, MassCheck, MeshCheck, SolidInfo, TabCheck
@@ -122,6 +123,7 @@ def _mass(kit: Kit, model: Model) -> tuple[MassCheck, list[SolidInfo]]:
         else:
             # the component's mass as given, at the centre of the shape the kit gives it
             # (the motor's shaft is drawn for the fit, weighed with the body)
+            assert b.mass_kg is not None  # every component body carries the mass the kit gives
             mass = float(b.mass_kg)
             _, centre = _volume_and_centre(model.piece_solids[(b.name, 0)])
         infos.append(SolidInfo(b.name, b.source, "rotating" if b.rotating else "fixed", vol, mass))
@@ -142,8 +144,8 @@ def _mass(kit: Kit, model: Model) -> tuple[MassCheck, list[SolidInfo]]:
     dev_m = abs(rot_m - ref.rotating_mass_kg) / ref.rotating_mass_kg if ref.rotating_mass_kg > 0 else 0.0
     dev_cg = float(np.linalg.norm(rot_cg - ref_cg))
     tol_cg = max(MASS_TOL * float(np.linalg.norm(ref_cg)), 0.01)
-    check = MassCheck(rot_m, tuple(float(v) for v in rot_cg), ref.rotating_mass_kg, tuple(float(v) for v in ref_cg),
-                      dev_m, dev_cg, tol_cg, kit_m, tuple(float(v) for v in kit_cg),
+    check = MassCheck(rot_m, vec3(rot_cg), ref.rotating_mass_kg, vec3(ref_cg),
+                      dev_m, dev_cg, tol_cg, kit_m, vec3(kit_cg),
                       dev_m <= MASS_TOL and dev_cg <= tol_cg)
     return check, infos
 
@@ -214,7 +216,7 @@ def check_model(model: Model, kit: Kit, spec, step_deg: float = SWEEP_STEP_DEG) 
     timing.insert(0, ("build", model.build_s))
     return AssemblyReport(
         solids=tuple(infos), interference=tuple(interference), floating_parts=tuple(floating),
-        detached_parts=tuple(detached), tabs=tuple(tabs), tracking_range_deg=tuple(tr.range_deg),
+        detached_parts=tuple(detached), tabs=tuple(tabs), tracking_range_deg=tr.range_deg,
         step_deg=float(angles[1] - angles[0]) if len(angles) > 1 else 0.0, angles=len(angles),
         running=tuple(running), closest=tuple(closest), frame_clearance=frame,
         frame_clearance_required_mm=spec.frame.clearance_mm, collisions=tuple(collisions),

@@ -77,7 +77,7 @@ def _sweep(model: Model, meas: _Measures, angles: np.ndarray):
     dist = np.full(tab.lb.shape, np.nan)  # exact distances computed so far (0 where colliding)
     volume = np.zeros(tab.lb.shape)
 
-    def name(n):
+    def name(n: int) -> tuple[str, str]:
         i, j = tab.pairs[n]
         return bodies[i].name, bodies[j].name
 

@@ -59,6 +59,7 @@ def _thickness_range() -> tuple[float, float]:
     from sheetgen.design.spec import SCHEMA_BY_PATH
 
     key = SCHEMA_BY_PATH["sheet.thickness"]
+    assert key.lo is not None and key.hi is not None  # the schema bounds this key on both sides
     return key.lo, key.hi
 
 
@@ -66,6 +67,7 @@ def _kerf_range() -> tuple[float, float]:
     from sheetgen.design.spec import SCHEMA_BY_PATH
 
     key = SCHEMA_BY_PATH["laser.kerf"]
+    assert key.lo is not None and key.hi is not None  # the schema bounds this key on both sides
     return key.lo, key.hi
 
 

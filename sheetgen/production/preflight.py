@@ -176,13 +176,13 @@ def _duplicate_faults(geo: CutGeometry) -> list[Fault]:
         if s.kind != "curve":
             continue
         pts = [(round(x / DUP_TOL_MM), round(y / DUP_TOL_MM)) for x, y in s.points]
-        key = min(tuple(pts), tuple(reversed(pts)))
-        if len(set(key)) == 1:
+        curve_key = min(tuple(pts), tuple(reversed(pts)))
+        if len(set(curve_key)) == 1:
             continue  # no length: a zero-length fault
-        if key in curves:
-            report(curves[key], s.entity, s.points[0], "arc or curve")
+        if curve_key in curves:
+            report(curves[curve_key], s.entity, s.points[0], "arc or curve")
         else:
-            curves[key] = s.entity
+            curves[curve_key] = s.entity
     # straight segments lying on each other, partly or wholly
     lines = [s for s in geo.segments if s.kind == "line" and math.dist(*s.points) >= ZERO_TOL_MM]
     if len(lines) > 1:
@@ -250,13 +250,17 @@ def check(geo: CutGeometry, sheet_mm: tuple[float, float] | None = None,
     for k, pts in enumerate(cleaned):
         if len(pts) < 3 and len(pts):
             faults.append(Fault("zero-length", "closed contour of no area", *pts[0]))
-    if usable:
+    all_rings: np.ndarray
+    all_polys: np.ndarray
+    valid: np.ndarray
+    areas: np.ndarray
+    if usable:  # array in, array out (np.asarray only tells the type checker)
         counts = np.array([len(cleaned[k]) for k in usable])
         coords = np.concatenate([cleaned[k] for k in usable])
-        all_rings = shapely.linearrings(coords, indices=np.repeat(np.arange(len(usable)), counts))
-        all_polys = shapely.polygons(all_rings)
-        valid = shapely.is_valid(all_polys)
-        areas = shapely.area(all_polys)
+        all_rings = np.asarray(shapely.linearrings(coords, indices=np.repeat(np.arange(len(usable)), counts)))
+        all_polys = np.asarray(shapely.polygons(all_rings))
+        valid = np.asarray(shapely.is_valid(all_polys))
+        areas = np.asarray(shapely.area(all_polys))
     else:
         all_rings = all_polys = np.zeros(0, dtype=object)
         valid = areas = np.zeros(0)
@@ -279,8 +283,8 @@ def check(geo: CutGeometry, sheet_mm: tuple[float, float] | None = None,
     rings = list(all_rings[keep])
     sources = [joined.sources[usable[pos]] for pos in keep]
     if not rings and not any(f.kind == "self-crossing" for f in faults):
-        where = f"layer {', '.join(geo.layers)}" if geo.layers else "any layer"
-        faults.append(Fault("nothing-to-cut", f"no closed contour on {where}: the file has nothing to cut"))
+        layers = f"layer {', '.join(geo.layers)}" if geo.layers else "any layer"
+        faults.append(Fault("nothing-to-cut", f"no closed contour on {layers}: the file has nothing to cut"))
     if sheet_mm is not None:
         faults += _off_sheet_faults(geo, sheet_mm)
     if rings:
@@ -342,11 +346,11 @@ def _lead_in_faults(geo: CutGeometry, polys, rings, sources) -> list[Fault]:
     own = {src: j for j, src in enumerate(sources) if src >= 0}
     faults = []
     tree = shapely.STRtree(rings)
-    for i, lead in enumerate(geo.leads):
-        if len(lead) < 2 or i not in own:
+    for i, lead_xy in enumerate(geo.leads):
+        if len(lead_xy) < 2 or i not in own:
             continue
-        line = LineString(lead)
-        lead = [tuple(p) for p in lead]
+        line = LineString(lead_xy)
+        lead = [tuple(p) for p in lead_xy]
         name = geo.entity_names[i]
         j_own = own[i]
         if polys[j_own].contains(Point(lead[0])) == (depth[j_own] % 2 == 0):
@@ -431,7 +435,9 @@ def _narrow_faults(polys, rings, kerf_mm: float, radii=None) -> list[Fault]:
             continue
         general.append(poly)
         sides.append(inside_is_material)
-    regions, radius, message = [], [], []
+    regions: np.ndarray = np.zeros(0, dtype=object)
+    radius: np.ndarray = np.zeros(0)
+    message: list[str] = []
     if general:
         inside = shapely.polygons(shapely.get_exterior_ring(np.asarray(general, dtype=object)))
         frame = shapely.buffer(shapely.envelope(inside), 4 * limit, join_style="mitre")

@@ -60,7 +60,7 @@ def kit_items(kit, kerf_mm: float, kits: int, rotations_deg: tuple[float, ...] |
         raise ParameterError(f"--kits {kits}: must be a whole number >= 1")
     items, sources = [], []
     for part in kit.parts:
-        items.append(NestItem(part.name, cut_outline(part.fit_outline, kerf_mm), part.qty * kits,
+        items.append(NestItem(part.name, cut_outline(part.outline_to_cut, kerf_mm), part.qty * kits,
                               rotations_deg or part.rotations_deg))
         sources.append(ItemSource(part.name, tuple(circles_of(part.circles)), kerf_mm / 2, part.marks))
     return items, sources
@@ -85,7 +85,7 @@ def extra_items(parts, kerf_mm: float, rotations_deg: tuple[float, ...]):
 def placed_sheets(result: NestResult, items, sources) -> list[PlacedSheet]:
     """Every sheet's contours and marks, parts in the nester's order. Sheets of
     one pattern (see :func:`sheetgen.production.nesting.sheet_patterns`) share them."""
-    out: list[PlacedSheet | None] = [None] * len(result.sheets)
+    out: dict[int, PlacedSheet] = {}  # sheet position -> sheet; the patterns cover every position
     for group in sheet_patterns(result):
         sheet = result.sheets[group[0]]
         contours: list[Contour] = []
@@ -101,7 +101,7 @@ def placed_sheets(result: NestResult, items, sources) -> list[PlacedSheet]:
         parts = (tuple(contours), tuple(marks), tuple(polys), tuple(labels))
         for k in group:
             out[k] = PlacedSheet(k + 1, *parts)
-    return out
+    return [out[k] for k in range(len(result.sheets))]
 
 
 def patterns_json(result: NestResult) -> list[dict]:

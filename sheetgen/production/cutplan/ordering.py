@@ -45,7 +45,7 @@ def _validate(contours: Sequence[Contour]) -> None:
     for i, c in enumerate(contours):
         if not isinstance(c, Contour):
             raise SheetgenError(f"contour {i}: must be a sheetgen.io.dxf.Contour, not {type(c).__name__}")
-        if c.is_circle:
+        if c.circle is not None:
             cx, cy, r = c.circle
             if not all(math.isfinite(v) for v in (cx, cy, r)) or r <= 0:
                 raise SheetgenError(f"contour {i}: circle {c.circle} must have a finite radius above 0 mm")
@@ -57,7 +57,7 @@ def _validate(contours: Sequence[Contour]) -> None:
 
 
 def _first_point(c: Contour) -> tuple[float, float]:
-    if c.is_circle:
+    if c.circle is not None:
         cx, cy, r = c.circle
         return (cx + r, cy)
     return c.points[0]
@@ -89,11 +89,12 @@ def _nearest_neighbour(problem: _Problem) -> tuple[list[int], np.ndarray]:
     """Greedy order from home: the nearest contour that may be cut next, entered
     at its nearest vertex (or nearest circle point)."""
     n = problem.n
-    ring_ids = [i for i in range(n) if problem.rings[i] is not None]
+    rings = [(i, ring) for i, ring in enumerate(problem.rings) if ring is not None]
+    ring_ids = [i for i, _ in rings]
     circ_ids = [i for i in range(n) if problem.circles[i] is not None]
     if ring_ids:
-        verts = np.concatenate([problem.rings[i] for i in ring_ids])
-        sizes = np.array([len(problem.rings[i]) for i in ring_ids])
+        verts = np.concatenate([ring for _, ring in rings])
+        sizes = np.array([len(ring) for _, ring in rings])
         offsets = np.concatenate([[0], np.cumsum(sizes)[:-1]])
     circ = np.array([problem.circles[i] for i in circ_ids], dtype=float).reshape(-1, 3)
     ring_ids_a = np.array(ring_ids, dtype=int)
@@ -118,8 +119,8 @@ def _nearest_neighbour(problem: _Problem) -> tuple[list[int], np.ndarray]:
             dist[circ_ids_a] = dc
         dist[done | (indeg > 0)] = np.inf
         c = int(np.argmin(dist))
-        if problem.rings[c] is not None:
-            v = problem.rings[c]
+        v = problem.rings[c]
+        if v is not None:
             k = int(np.argmin(np.hypot(v[:, 0] - here[0], v[:, 1] - here[1])))
             p = v[k]
         else:
@@ -302,6 +303,7 @@ def _candidates(problem: _Problem, c: int, current: np.ndarray) -> np.ndarray:
         step = -(-len(ring) // MAX_RING_CANDIDATES)
         return np.vstack([current[None, :], ring[::step]])
     circle = problem.circles[c]
+    assert circle is not None  # a contour that is not a ring is a circle
     ang = np.arange(CIRCLE_CANDIDATES) * (2 * math.pi / CIRCLE_CANDIDATES)
     cx, cy, r = circle
     pts = np.round(np.column_stack([cx + r * np.cos(ang), cy + r * np.sin(ang)]), ROUND_DIGITS) + 0.0

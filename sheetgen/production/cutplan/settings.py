@@ -124,7 +124,7 @@ class CutPlan:
 
 def contour_perimeter_mm(contour: Contour) -> float:
     """Length of one closed contour (a ring's closing edge included)."""
-    if contour.is_circle:
+    if contour.circle is not None:
         return 2.0 * math.pi * contour.circle[2]
     pts = contour.points
     return sum(math.dist(pts[i], pts[(i + 1) % len(pts)]) for i in range(len(pts)))
@@ -158,7 +158,7 @@ def _round_pt(p) -> tuple[float, float]:
 def _planned(contour: Contour, start, lead_in=None) -> PlannedContour:
     if contour.is_circle:
         return PlannedContour(circle=contour.circle, start=_round_pt(start), lead_in=lead_in)
-    pts = tuple(tuple(p) for p in contour.points)
+    pts = tuple((x, y) for x, y in contour.points)
     k = min(range(len(pts)), key=lambda i: (pts[i][0] - start[0]) ** 2 + (pts[i][1] - start[1]) ** 2)
     rotated = pts[k:] + pts[:k]
     return PlannedContour(points=rotated, start=rotated[0], lead_in=lead_in)

@@ -139,9 +139,11 @@ def read_esicup_xml(path: str | Path) -> Instance:
             from shapely import affinity
 
             parts.append(affinity.translate(polygons[pid], dx, dy))
-        if not parts:
+        if not parts or first_id is None:
             raise InputFileError(f"{path}: piece {piece.get('id')!r} has no component")
         geom = parts[0] if len(parts) == 1 else unary_union(parts)
+        if not isinstance(geom, Polygon):
+            raise InputFileError(f"{path}: the components of piece {piece.get('id')!r} do not join into one polygon")
         return geom, first_id
 
     boards = _child(problem, "boards")

@@ -45,6 +45,8 @@ import pyclipper
 import shapely
 from shapely.geometry import MultiPolygon, Polygon
 
+from sheetgen.geometry.shapes import one_polygon
+
 GRID_TARGET = float(2**45)
 
 
@@ -242,7 +244,8 @@ def clearance_outline(polygon: Polygon, half_spacing: float, max_vertices: int =
                 return cand
         tol *= 2
     hull = out.convex_hull
-    return hull.buffer(tol, join_style="mitre", mitre_limit=4.0).simplify(tol).convex_hull
+    return one_polygon(hull.buffer(tol, join_style="mitre", mitre_limit=4.0).simplify(tol).convex_hull,
+                       "simplified spacing outline")
 
 
 def fill_small_holes(polygon: Polygon, width: float, height: float) -> Polygon:
@@ -279,7 +282,8 @@ def fast_nfp_paths(fixed: Polygon, moving: Polygon, scale: float):
     if is_convex(a) and is_convex(b):
         pa = np.asarray(a.exterior.coords)[:-1]
         pb = np.asarray(b.exterior.coords)[:-1]
-        hull = shapely.MultiPoint((pa[:, None, :] - pb[None, :, :]).reshape(-1, 2)).convex_hull
+        hull = one_polygon(shapely.MultiPoint((pa[:, None, :] - pb[None, :, :]).reshape(-1, 2)).convex_hull,
+                           "no-fit polygon of two convex shapes")
         return _polygon_paths(hull, scale), len(pa) * len(pb) // 8
     na = int(shapely.get_num_coordinates(a))
     nb = int(shapely.get_num_coordinates(b))

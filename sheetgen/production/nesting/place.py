@@ -41,6 +41,7 @@ import pyclipper
 import shapely
 from shapely.geometry import Polygon
 
+from sheetgen.errors import GeometryBug
 from sheetgen.production.nesting.nfp import clearance_outline, fast_nfp_paths, shape_of
 
 # Placement rules (y weight, width weight): the score of a reference point
@@ -164,6 +165,14 @@ CHECK_UNITS = 16
 NFP_UNITS = 16
 
 
+# Clipper paths in grid units: a list of closed paths, each a list of [x, y] points.
+ClipperPaths = list[list[list[int]]]
+# A shape's feasible region on a sheet: (paths, all their vertices as an (n, 2)
+# int64 array, their bounding box in grid units, placed parts already cut from it);
+# when nothing fits the paths are empty and vertices and box are None.
+Region = tuple[ClipperPaths, np.ndarray | None, tuple[int, int, int, int] | None, int]
+
+
 class Sheet:
     """One sheet (or the strip) being filled. Persistent: :meth:`with_part`
     returns a new sheet, so earlier states can be kept as snapshots.
@@ -178,7 +187,7 @@ class Sheet:
         self.lib = lib
         self.usable = usable
         self.placed = placed          # ((shape id, px units, py units), ...)
-        self.regions = regions if regions is not None else {}  # canon id -> (paths, bounds, parts applied)
+        self.regions: dict[int, Region] = regions if regions is not None else {}  # canon id -> region
         self.area = area
         self.x_max = x_max
 
@@ -191,11 +200,14 @@ class Sheet:
             return None
         return r
 
-    def region(self, shape_id: int, work: Work):
+    def region(self, shape_id: int, work: Work) -> tuple[ClipperPaths, np.ndarray | None]:
         """The up-to-date feasible region of a shape: (clipper paths, all their
-        vertices as an (n, 2) int64 array); empty paths when nothing fits."""
+        vertices as an (n, 2) int64 array); empty paths (and None) when nothing fits."""
         sh = self.lib.shapes[shape_id]
         entry = self.regions.get(sh.canon)
+        paths: ClipperPaths
+        xy: np.ndarray | None
+        bounds: tuple[int, int, int, int] | None
         if entry is None:
             r = self._fit_rect(sh)
             if r is None:
@@ -209,10 +221,11 @@ class Sheet:
                 applied = 0
         else:
             paths, xy, bounds, applied = entry
-        if applied < len(self.placed) and paths:
+        # non-empty paths always come with their vertices and box
+        if applied < len(self.placed) and paths and xy is not None and bounds is not None:
             work.add(CHECK_UNITS * (len(self.placed) - applied))
             rx0, ry0, rx1, ry1 = bounds
-            cut = []
+            cut: ClipperPaths = []
             nverts = 0
             for sid, px, py in self.placed[applied:]:
                 flat, cuts, nb = self.lib.nfp(sid, shape_id)
@@ -242,12 +255,14 @@ class Sheet:
         """(score, px, py) of the best free position in grid units, or None."""
         paths, xy = self.region(shape_id, work)
         work.add(ATTEMPT_UNITS)
-        if not paths:
+        if not paths or xy is None:  # no paths, no vertices (the two go together)
             return None
         work.add(len(xy))
         s = xy[:, 0] + y_weight * xy[:, 1]
         k = int(np.argmin(s))
         r = self._fit_rect(self.lib.shapes[shape_id])
+        if r is None:
+            raise GeometryBug(f"shape {shape_id}: a free region on a sheet it does not fit")
         px = min(max(int(xy[k, 0]), r[0]), r[2])
         py = min(max(int(xy[k, 1]), r[1]), r[3])
         return float(s[k]) / self.lib.scale, px, py

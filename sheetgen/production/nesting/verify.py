@@ -99,10 +99,10 @@ def verify(result: NestResult, items: list[NestItem] | tuple[NestItem, ...]) -> 
                 raise GeometryBug(f"sheet {s + 1}: part {name!r} copy {p.copy} at ({bx0:.6f}, {by0:.6f})-"
                                   f"({bx1:.6f}, {by1:.6f}) leaves the usable area ({m:g} to {w - m:g}, "
                                   f"{m:g} to {h - m:g})")
-        key = tuple((p.item, p.angle_deg, p.x_mm, p.y_mm) for p in sheet)
-        if key in checked:  # the same parts at the same places as a sheet already checked: same verdict
+        layout = tuple((p.item, p.angle_deg, p.x_mm, p.y_mm) for p in sheet)
+        if layout in checked:  # the same parts at the same places as a sheet already checked: same verdict
             continue
-        checked.add(key)
+        checked.add(layout)
         tree = shapely.STRtree(polys)
         shrunk = shapely.buffer(polys, -tol, join_style="mitre")
         left, right = tree.query(shrunk, predicate="intersects")
