@@ -21,6 +21,7 @@ from typing import TYPE_CHECKING, Any
 
 from sheetgen.design.sections import SECTION_CLASSES
 from sheetgen.errors import InputFileError, ParameterError
+from sheetgen.geometry.placement import vec3
 
 if TYPE_CHECKING:
     from sheetgen.design.sections import (AxleParams, CheckParams, DriveParams, FrameParams, JointsParams,
@@ -249,9 +250,9 @@ class Spec:
         key = SCHEMA_BY_PATH[path]
         return getattr(getattr(self, key.section), key.attr)
 
-    def to_table(self) -> dict:
+    def to_table(self) -> dict[str, Any]:
         """The parameters as a TOML-shaped dict (keys without units)."""
-        out: dict[str, dict] = {}
+        out: dict[str, Any] = {}
         for k in SCHEMA:
             out.setdefault(k.section, {})[k.name] = self.value(k.path)
         out["rotating_mass"] = [
@@ -365,7 +366,7 @@ def _rotating_masses(entries: list, where: str) -> tuple[RotatingMass, ...]:
             raise ParameterError(
                 f"{tag}.position_mm = {pos!r}: must be [x, y, z] in mm, each from "
                 f"{-POSITION_LIMIT_MM:g} to {POSITION_LIMIT_MM:g}")
-        out.append(RotatingMass(name.strip(), float(mass), tuple(float(v) for v in pos)))
+        out.append(RotatingMass(name.strip(), float(mass), vec3(pos)))
     names = [m.name for m in out]
     dupes = sorted({n for n in names if names.count(n) > 1})
     if dupes:

@@ -8,6 +8,7 @@ rings (:func:`closed_rings`).
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 
 import numpy as np
@@ -153,3 +154,14 @@ def cluster_points(points: np.ndarray, tol: float) -> np.ndarray:
             break
         labels = new
     return labels
+
+
+def drop_repeats(pts: np.ndarray) -> np.ndarray:
+    """Consecutive points closer than ZERO_TOL_MM merged; the closing point dropped."""
+    if len(pts) < 2:
+        return pts
+    keep = np.concatenate([[True], np.hypot(*np.diff(pts, axis=0).T) > ZERO_TOL_MM])
+    pts = pts[keep]
+    if len(pts) > 1 and math.dist(pts[0], pts[-1]) <= JOIN_TOL_MM:
+        pts = pts[:-1]
+    return pts

@@ -44,7 +44,7 @@ import numpy as np
 
 from sheetgen.errors import InputFileError
 from sheetgen.geometry.cutpaths import FLATTEN_TOL_MM, JOIN_TOL_MM, ZERO_TOL_MM, CutGeometry, Segment, \
-    closed_rings
+    closed_rings, drop_repeats
 
 CUT_LAYER = "CUT"
 MAX_ENTITIES = 250_000            # entities in model space, blocks exploded (about 1.6 GB, a minute)
@@ -374,7 +374,7 @@ def read_dxf_parts(path: str | Path) -> list[DxfPart]:
     circle_of = {i: (cx, cy, r) for i, cx, cy, r in geo.circles}
     rings = []
     for pts, source in zip(joined.rings, joined.sources):
-        pts = _drop_repeats(pts)
+        pts = drop_repeats(pts)
         if len(pts) < 3:
             x, y = pts[0] if len(pts) else (0.0, 0.0)
             raise InputFileError(f"{path}: degenerate contour at ({_fmt(x)}, {_fmt(y)}) with fewer than 3 points")
@@ -387,17 +387,6 @@ def read_dxf_parts(path: str | Path) -> list[DxfPart]:
         raise InputFileError(f"{path}: no closed contour found (parts must be drawn as closed outlines"
                              f"{' on layer ' + CUT_LAYER if any(n.upper() == CUT_LAYER for n in geo.layers) else ''})")
     return _assemble(rings, path)
-
-
-def _drop_repeats(pts: np.ndarray) -> np.ndarray:
-    """Consecutive points closer than ZERO_TOL_MM merged; the closing point dropped."""
-    if len(pts) < 2:
-        return pts
-    keep = np.concatenate([[True], np.hypot(*np.diff(pts, axis=0).T) > ZERO_TOL_MM])
-    pts = pts[keep]
-    if len(pts) > 1 and math.dist(pts[0], pts[-1]) <= JOIN_TOL_MM:
-        pts = pts[:-1]
-    return pts
 
 
 def _assemble(rings, path: Path) -> list[DxfPart]:

@@ -71,7 +71,7 @@ from pathlib import Path
 import numpy as np
 
 from sheetgen.errors import ParameterError
-from sheetgen.geometry.cutpaths import JOIN_TOL_MM, ZERO_TOL_MM, CutGeometry, closed_rings
+from sheetgen.geometry.cutpaths import JOIN_TOL_MM, ZERO_TOL_MM, CutGeometry, closed_rings, drop_repeats
 
 DUP_TOL_MM = 0.001  # segments this close are the same segment
 SPIKE_ANGLE_DEG = 30.0
@@ -216,17 +216,6 @@ def _duplicate_faults(geo: CutGeometry) -> list[Fault]:
 _LOCATION = re.compile(r"\[\s*([-+0-9.eE]+)\s+([-+0-9.eE]+)")
 
 
-def _dedupe(pts: np.ndarray) -> np.ndarray:
-    """Consecutive points closer than ZERO_TOL_MM merged; the closing point dropped."""
-    if len(pts) < 2:
-        return pts
-    keep = np.concatenate([[True], np.hypot(*np.diff(pts, axis=0).T) > ZERO_TOL_MM])
-    pts = pts[keep]
-    if len(pts) > 1 and math.dist(pts[0], pts[-1]) <= JOIN_TOL_MM:
-        pts = pts[:-1]
-    return pts
-
-
 def check(geo: CutGeometry, sheet_mm: tuple[float, float] | None = None,
           kerf_mm: float | None = None) -> PreflightReport:
     """All the checks on read geometry. Faults are sorted by kind, then position."""
@@ -244,7 +233,7 @@ def check(geo: CutGeometry, sheet_mm: tuple[float, float] | None = None,
 
     # every ring at once: drop repeated points, build, test validity and area in one go
     circle_of = {i: r for i, _x, _y, r in geo.circles}
-    cleaned = [pts[:-1] if src in circle_of else _dedupe(np.asarray(pts, dtype=float))
+    cleaned = [pts[:-1] if src in circle_of else drop_repeats(np.asarray(pts, dtype=float))
                for pts, src in zip(joined.rings, joined.sources)]
     usable = [k for k, pts in enumerate(cleaned) if len(pts) >= 3]
     for k, pts in enumerate(cleaned):
