@@ -1,6 +1,6 @@
 """Readers for the academic strip-packing instances used as outside references.
 
-Two formats (see ``shared/benchmarks/esicup/README.md``):
+Two formats (see ``tests/data/esicup/README.md``):
 
 * ESICUP XML: ``problem/boards`` (the strip; its y-extent is the strip width),
   ``problem/lot/piece`` (quantity, allowed angles, component polygon),
