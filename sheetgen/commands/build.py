@@ -49,7 +49,7 @@ def command(params, kits, out_dir, dxf_version, model, overrides, into_existing,
     failing = build.failing_checks
     s = build.summary
     click.echo(f"{s['kits']} kit(s): {s['parts']} parts on {s['sheets']} sheet(s) "
-               f"(area bound {s['area_lower_bound_sheets']}), utilisation "
+               f"(lower bound {s['lower_bound_sheets']}), utilisation "
                + ", ".join(f"{u * 100:.1f} %" for u in s["utilisation"]))
     click.echo(f"cut {s['cut_length_mm'] / 1000:.2f} m, {s['pierces']} pierces, travel {s['travel_mm'] / 1000:.2f} m "
                f"(planning saved {(s['travel_unplanned_mm'] - s['travel_mm']) / 1000:.2f} m), "
