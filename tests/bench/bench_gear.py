@@ -6,18 +6,11 @@ Prints figures only; nothing is asserted.
 
 from __future__ import annotations
 
-import time
+
+from timing import best_of  # tests/bench/timing.py, beside this script
 
 from sheetgen.drive.gears import GearSpec, Hub, gear_blank, gear_pair
 
-
-def best_of(fn, repeat: int = 7) -> tuple[float, object]:
-    best, out = float("inf"), None
-    for _ in range(repeat):
-        t = time.perf_counter()
-        out = fn()
-        best = min(best, time.perf_counter() - t)
-    return best, out
 
 
 def main() -> None:
@@ -30,12 +23,12 @@ def main() -> None:
     ]
     print(f"{'case':52s} {'time ms':>8s} {'outline':>8s} {'per tooth':>9s} {'holes':>6s}")
     for name, spec, kerf in cases:
-        dt, g = best_of(lambda: gear_blank(spec, kerf))
+        dt, g = best_of(lambda: gear_blank(spec, kerf), repeat=7)
         n = len(g.polygon.exterior.coords) - 1
         holes = sum(len(r.coords) - 1 for r in g.polygon.interiors)
         print(f"{name:52s} {dt * 1e3:8.1f} {n:8d} {n / spec.teeth:9.1f} {holes:6d}")
     for tol in (0.01, 0.0025, 0.001):
-        dt, g = best_of(lambda: gear_blank(GearSpec(1.0, 60), 0.0, tol))
+        dt, g = best_of(lambda: gear_blank(GearSpec(1.0, 60), 0.0, tol), repeat=7)
         n = len(g.polygon.exterior.coords) - 1
         print(f"{'60-tooth wheel, m 1, chord tol ' + str(tol) + ' mm':52s} {dt * 1e3:8.1f} {n:8d} {n / 60:9.1f}")
     dt, p = best_of(lambda: gear_pair(GearSpec(1.0, 12), GearSpec(1.0, 36), 0.15), repeat=3)

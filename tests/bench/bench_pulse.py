@@ -8,19 +8,11 @@ Prints figures only; nothing is asserted.
 from __future__ import annotations
 
 import sys
-import time
 from pathlib import Path
 
+from timing import best_of  # tests/bench/timing.py, beside this script
+
 ROOT = Path(__file__).resolve().parents[2]
-
-
-def best_of(fn, repeat: int = 3):
-    best, out = float("inf"), None
-    for _ in range(repeat):
-        t = time.perf_counter()
-        out = fn()
-        best = min(best, time.perf_counter() - t)
-    return best, out
 
 
 def main() -> None:

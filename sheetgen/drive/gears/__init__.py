@@ -1,11 +1,5 @@
-"""Gear blanks and the drive pair (pure core).
-
-A :class:`GearSpec` says what the finished gear must be; :func:`gear_blank`
-turns it into the polygon the laser follows (kerf included) and the dimensions
-to check the cut gear with calipers. The sizes reported are those of the
-finished gear (after the kerf has taken its half off the cut path); only the
-polygon carries the kerf. Do not offset a blank's polygon again: the kerf
-compensation here is the exact one (see :mod:`sheetgen.drive.involute`).
+"""Gear blanks and the drive pair (pure core); how a blank carries the kerf is
+told in :mod:`sheetgen.drive.gears.blank`.
 
 Modules: spec (what a gear must be, ranges, validation), hub (bore and lightening
 windows), blank (the kerf-compensated blank and its checks), pair (the meshing pair).
