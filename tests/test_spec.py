@@ -42,7 +42,7 @@ def test_every_key_is_documented_with_unit_and_range():
     for k in SCHEMA:
         assert f"`{k.path}`" in table
         assert k.doc
-        assert k.choices or k.kind is bool or (k.lo is not None and k.hi is not None), k.path
+        assert k.choices or k.kind is bool or k.form or (k.lo is not None and k.hi is not None), k.path
 
 
 def test_unknown_key_gets_did_you_mean(doc):

@@ -146,6 +146,33 @@ class CheckParams:
     torque_margin: float  # check.torque_margin, -
 
 
+@dataclass(frozen=True)
+class PricesParams:
+    """[prices] (see the README's parameter table for units, ranges and meaning)."""
+
+    bolt: float  # prices.bolt, currency
+    nut: float  # prices.nut, currency
+    washer: float  # prices.washer, currency
+    anchor_screw: float  # prices.anchor_screw, currency
+    motor_screw: float  # prices.motor_screw, currency
+    axle_rod_per_m: float  # prices.axle_rod, currency/m
+    motor: float  # prices.motor, currency
+    panel: float  # prices.panel, currency
+    counterweight: float  # prices.counterweight, currency
+    glue: float  # prices.glue, currency
+    payload: float  # prices.payload, currency
+
+
+@dataclass(frozen=True)
+class SvgParams:
+    """[svg] (see the README's parameter table for units, ranges and meaning)."""
+
+    cut_colour: str  # svg.cut_colour, -
+    label_colour: str  # svg.label_colour, -
+    guide_colour: str  # svg.guide_colour, -
+    stroke_mm: float  # svg.stroke, mm
+
+
 SECTION_CLASSES: dict[str, type] = {
     "panel": PanelParams,
     "sheet": SheetParams,
@@ -158,4 +185,6 @@ SECTION_CLASSES: dict[str, type] = {
     "drive": DriveParams,
     "site": SiteParams,
     "check": CheckParams,
+    "prices": PricesParams,
+    "svg": SvgParams,
 }

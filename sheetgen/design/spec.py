@@ -14,6 +14,7 @@ from __future__ import annotations
 
 import difflib
 import math
+import re
 import tomllib
 from dataclasses import dataclass
 from pathlib import Path
@@ -26,7 +27,7 @@ from sheetgen.geometry.placement import vec3
 if TYPE_CHECKING:
     from sheetgen.design.sections import (AxleParams, CheckParams, DriveParams, FrameParams, JointsParams,
                                           LaserParams, MotorParams, NestParams, PanelParams, SheetParams,
-                                          SiteParams)
+                                          PricesParams, SiteParams, SvgParams)
 
 REQUIRED = object()
 AUTO = "auto"  # a derived key left to the layout solver (sheetgen/design/solver/)
@@ -44,6 +45,7 @@ class Key:
     hi: float | None = None
     choices: tuple[str, ...] = ()
     rule: str = ""  # derived key: the solver rule that sets it when the value is "auto"
+    form: str = ""  # a text key's required form: COLOUR_FORM (a #rrggbb colour)
 
     @property
     def derived(self) -> bool:
@@ -62,6 +64,8 @@ class Key:
         return f'"auto" or {text}' if self.rule else text
 
     def _allowed(self) -> str:
+        if self.form == COLOUR_FORM:
+            return 'a colour written #rrggbb (six hex digits, for example "#6a1b9a")'
         if self.choices:
             return "one of " + ", ".join(repr(c) for c in self.choices)
         if self.kind is bool:
@@ -80,6 +84,14 @@ def _fmt(v: float) -> str:
 
 def _k(path, attr, kind, default, unit, doc, lo=None, hi=None, choices=()):
     return Key(path, attr, kind, default, unit, doc, lo, hi, tuple(choices))
+
+
+COLOUR_FORM = "#rrggbb"
+
+
+def _colour(path, attr, default, doc):
+    """A text key holding a colour written #rrggbb."""
+    return Key(path, attr, str, default, "-", doc, form=COLOUR_FORM)
 
 
 def _d(path, attr, kind, rule, unit, doc, lo=None, hi=None):
@@ -198,6 +210,32 @@ SCHEMA: tuple[Key, ...] = (
     _k("check.tipping_safety", "tipping_safety", float, 1.5, "-", "Safety factor against the kit tipping over in wind.", 1, 5),
     _k("check.torque_margin", "torque_margin", float, 1.25, "-",
        "Motor torque on hand over torque needed that the drive is designed for.", 1, 10),
+    # prices (optional; 0: not priced, shown as absent, never as zero) ----------
+    _k("prices.bolt", "bolt", float, 0.0, "currency", "Price of one bolt of the hardware list (0: not priced).", 0, 1e4),
+    _k("prices.nut", "nut", float, 0.0, "currency", "Price of one nut (0: not priced).", 0, 1e4),
+    _k("prices.washer", "washer", float, 0.0, "currency", "Price of one washer (0: not priced).", 0, 1e4),
+    _k("prices.anchor_screw", "anchor_screw", float, 0.0, "currency",
+       "Price of one screw that fixes the base to its surface (0: not priced).", 0, 1e4),
+    _k("prices.motor_screw", "motor_screw", float, 0.0, "currency",
+       "Price of one screw that holds the motor to its mount (0: not priced).", 0, 1e4),
+    _k("prices.axle_rod", "axle_rod_per_m", float, 0.0, "currency/m",
+       "Price of the axle rod stock per metre (0: not priced).", 0, 1e5),
+    _k("prices.motor", "motor", float, 0.0, "currency", "Price of one gear-motor (0: not priced).", 0, 1e5),
+    _k("prices.panel", "panel", float, 0.0, "currency", "Price of one panel (0: not priced).", 0, 1e5),
+    _k("prices.counterweight", "counterweight", float, 0.0, "currency",
+       "Price of one counterweight (0: not priced).", 0, 1e4),
+    _k("prices.glue", "glue", float, 0.0, "currency", "Glue used by one kit (0: not priced).", 0, 1e4),
+    _k("prices.payload", "payload", float, 0.0, "currency",
+       "The other items the turning frame carries ([[rotating_mass]] entries), per kit (0: not priced).", 0, 1e5),
+    # cut-ready sheet SVGs (sheets/sheet-NN.svg) --------------------------------
+    _colour("svg.cut_colour", "cut_colour", "#6a1b9a",
+       "Stroke colour of the cut contours in the sheet SVGs, #rrggbb."),
+    _colour("svg.label_colour", "label_colour", "#00897b",
+       "Stroke colour of the engraved labels in the sheet SVGs, #rrggbb."),
+    _colour("svg.guide_colour", "guide_colour", "#ef6c00",
+       "Stroke colour of the alignment guides in the sheet SVGs, #rrggbb."),
+    _k("svg.stroke", "stroke_mm", float, 0.01, "mm",
+       "Stroke width of every line in the sheet SVGs (a hairline).", 0.001, 1),
 )
 
 SCHEMA_BY_PATH = {k.path: k for k in SCHEMA}
@@ -236,6 +274,8 @@ class Spec:
     drive: DriveParams
     site: SiteParams
     check: CheckParams
+    prices: PricesParams
+    svg: SvgParams
     rotating_masses: tuple[RotatingMass, ...]
     source: str = ""
     derived: tuple[Derived, ...] = ()  # filled by the solver: the keys that were "auto"
@@ -281,6 +321,8 @@ def _coerce(key: Key, value: Any, where: str):
         if not isinstance(value, str):
             raise ParameterError(f"{where}{key.path} = {value!r}: must be {key.allowed()}")
         if key.choices and value not in key.choices:
+            raise ParameterError(f"{where}{key.path} = {value!r}: must be {key.allowed()}")
+        if key.form == COLOUR_FORM and not re.fullmatch(r"#[0-9a-fA-F]{6}", value):
             raise ParameterError(f"{where}{key.path} = {value!r}: must be {key.allowed()}")
         return value
     if isinstance(value, bool) or not isinstance(value, (int, float)):
