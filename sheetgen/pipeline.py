@@ -20,7 +20,9 @@ from sheetgen.production.nesting import NestItem, NestResult
 from sheetgen.production.runs import PlacedSheet
 
 if TYPE_CHECKING:
+    from sheetgen.design.hardware import HardwareItem
     from sheetgen.model3d import AssemblyReport, Model
+    from sheetgen.production.cost import KitCost
 
 
 @dataclass(frozen=True)
@@ -44,6 +46,8 @@ class BuildResult:
     patterns: tuple[tuple[int, ...], ...] = ()  # sheet positions (0-based) cut from one layout
     model: Model | None = None  # the 3D model, when built (see :func:`with_model`)
     assembly: AssemblyReport | None = None
+    hardware: tuple[HardwareItem, ...] = ()  # the bought items of one kit (sheetgen.design.hardware)
+    kit_cost: KitCost | None = None  # cost per kit from the optional price list (sheetgen.production.cost)
 
     @property
     def failing_checks(self) -> list[str]:
@@ -144,8 +148,21 @@ def run_build(spec: Spec, kits: int, progress: Any = None, jobs: int | None = No
     plan_of = {k: plan for g, plan in zip(patterns, plans) for k in g}
     runs = [SheetRun(sheet, plan_of[k], util) for k, (sheet, util) in enumerate(zip(placed, result.utilisation))]
     summary = _summary(spec, kit, kits, balance, drive, result, runs)
+    hardware, cost = _hardware(spec, kit, kits, runs)
+    summary["hardware"] = [h.to_json(kits) for h in hardware]
+    summary["cost_per_kit"] = cost.to_json()
     summary["failing_checks"] = failing_checks(summary)
-    return BuildResult(spec, kit, kits, balance, drive, result, tuple(runs), run.items, summary, patterns)
+    return BuildResult(spec, kit, kits, balance, drive, result, tuple(runs), run.items, summary, patterns,
+                       hardware=hardware, kit_cost=cost)
+
+
+def _hardware(spec, kit, kits, runs):
+    """The kit's bought items and the cost per kit of this run."""
+    from sheetgen.design.hardware import hardware_items
+    from sheetgen.production.cost import kit_cost
+
+    hardware = hardware_items(kit, spec)
+    return hardware, kit_cost(spec, hardware, kits, len(runs), sum(r.plan.cut_time_s for r in runs))
 
 
 def _r(v, nd=3):

@@ -106,11 +106,15 @@ def command(params, kits, extras, sheet, strip_width, rotations, spacing, margin
     start = time.perf_counter()
     angles = parse_rotations(rotations) if rotations is not None else None
     items, sources = [], []
+    svg_style = None  # the cut-ready SVG's colours: the parameters' when given, else the defaults
     if params is not None:
         from sheetgen.design.kit import build_kit
         from sheetgen.design.spec import load_spec
 
         spec = load_spec(params, overrides)
+        from sheetgen.io.cutsvg import style_from_spec
+
+        svg_style = style_from_spec(spec)
         kerf = spec.laser.kerf_mm if kerf is None else kerf
         spacing = spec.nest.spacing_mm if spacing is None else spacing
         margin = spec.sheet.margin_mm if margin is None else margin
@@ -173,7 +177,8 @@ def command(params, kits, extras, sheet, strip_width, rotations, spacing, margin
     sheets = placed_sheets(result, items, sources)
     size = result.sheet_size_mm
     with staged_dir(out_dir) as tmp:
-        files = write_sheets(tmp, sheets, size, margin, patterns=sheet_patterns(result), jobs=jobs)
+        files = write_sheets(tmp, sheets, size, margin, patterns=sheet_patterns(result), jobs=jobs,
+                             svg_style=svg_style)
     from sheetgen.production.nesting.budget import EFFORT_PER_SECOND
 
     used_effort = effort if effort is not None else round(time_limit * EFFORT_PER_SECOND, 6)

@@ -26,6 +26,7 @@ def write_build(build: BuildResult, out_dir: str | Path, *, dxf_version: str = "
     >>> b = sheetgen.build(sheetgen.load_params(), kits=1, model=False)   # doctest: +SKIP
     >>> sheetgen.write_build(b, "out")                                    # doctest: +SKIP
     """
+    from sheetgen.io.cutsvg import style_from_spec
     from sheetgen.io.partfiles import write_part_files
     from sheetgen.io.report import render_report
     from sheetgen.io.sheets import write_sheets
@@ -38,8 +39,12 @@ def write_build(build: BuildResult, out_dir: str | Path, *, dxf_version: str = "
         write_part_files(build.kit, spec, tmp / "parts", dxf_version)
         write_sheets(tmp / "sheets", [r.sheet for r in build.sheets], build.nest.sheet_size_mm,
                      build.nest.margin_mm, [cut_plan_contours(r.plan) for r in build.sheets], dxf_version,
-                     patterns=build.patterns or None)
+                     patterns=build.patterns or None, svg_style=style_from_spec(spec))
         (tmp / "summary.json").write_text(json.dumps(build.summary, indent=2) + "\n", encoding="utf-8")
+        if "hardware" in build.summary:
+            from sheetgen.io.bom import bom_csv
+
+            (tmp / "bom.csv").write_text(bom_csv(build.summary), encoding="utf-8", newline="")
         picture = None
         if build.model is not None:
             from sheetgen.io.step import assembly_svg, write_step

@@ -118,6 +118,7 @@ def render_report(build, assembly_svg: str | None = None) -> str:
     out += _derived(build)
     out += _sheets(build)
     out += _bom(build)
+    out += _hardware_and_cost(build)
     out += _gears(build)
     out += _cut_table(build)
     out += _drive(build)
@@ -278,6 +279,46 @@ def _bom(build):
                    num=(1, 2, 4)),
             f"<p><small>Cut parts per kit weigh {total * 1000:.0f} g in "
             f"{escape(build.spec.sheet.material.replace('_', ' '))}; files for single parts are in parts/.</small></p>"]
+
+
+def _money(v) -> str:
+    """A cost figure; an absent one (no price given) is "-", never 0."""
+    return "-" if v is None else f"{v:,.2f}"
+
+
+def _hardware_and_cost(build) -> list[str]:
+    """The bought items (summary.json ``hardware``, also in bom.csv) and the cost per kit."""
+    s = build.summary
+    if "hardware" not in s:
+        return []
+    rows = []
+    for h in s["hardware"]:
+        size = " × ".join(x for x in (
+            f"Ø {h['diameter_mm']:g}" if "diameter_mm" in h else "",
+            f"{h['length_mm']:g} long" if "length_mm" in h else "") if x)
+        rows.append((escape(h["item"]), escape(h["spec"]), size, h["qty_per_kit"], h["qty_total"]))
+    out = ["<h2>Hardware</h2>",
+           _table(("item", "what to buy", "size mm", "per kit", f"for {build.kits} kits"), rows, num=(3, 4)),
+           "<p><small>Sized from the kit: bolt lengths cover the plates they pass, a washer each side, the nut "
+           "and two thread pitches, rounded up to the ISO 4762 length series; bolt sizes follow the ISO 273 "
+           "clearance holes. The same list, with the cut parts, is in bom.csv.</small></p>"]
+    c = s.get("cost_per_kit")
+    if c is None:
+        return out
+    lines: list[tuple[str, str, str]] = [("sheets", f"{build.summary['sheets']} sheets at sheet.price, shared by {c['kits']} kits", _money(c["sheets"])),
+            ("machine time", f"{build.summary['cut_time_s'] / 60:.1f} min at laser.rate, shared by {c['kits']} kits",
+             _money(c["machine"]))]
+    for ln in c["hardware"]:
+        qty = f"{ln['qty_per_kit']:g} m" if ln["unit"] == "metre" else (
+            "per kit" if ln["unit"] == "kit" else f"{ln['qty_per_kit']:g} ×")
+        lines.append((escape(", ".join(ln["items"])), f"{qty} at {_money(ln['price'])} ({ln['price_key']})",
+                     _money(ln["cost"])))
+    lines.append(("<b>total per kit</b>", "", f"<b>{_money(c['total'])}</b>"))
+    out += ["<h3>Cost per kit</h3>", _table(("what", "how", "cost"), lines, num=(2,))]
+    if c["missing"]:
+        out.append("<p><small>Not priced (give these keys to complete the total): "
+                   + ", ".join(f"<code>{escape(k)}</code>" for k in c["missing"]) + ".</small></p>")
+    return out
 
 
 def _gears(build):

@@ -1,5 +1,9 @@
 """Writing nested sheets: sheet-01.dxf, sheet-01.svg, ... in a folder.
 
+The SVG beside each DXF is the cut-ready one (sheetgen.io.cutsvg: the same
+contours in the same order, stroke only, true size); the filled preview
+(:func:`sheet_svg`) is drawn inside the report only.
+
 Sheets cut from one pattern (the same parts at the same places) are drawn
 once: the DXF bytes are reused and the SVG differs only in its title.
 """
@@ -10,6 +14,7 @@ from collections.abc import Sequence
 from pathlib import Path
 
 from sheetgen.geometry.contour import Contour
+from sheetgen.io.cutsvg import CutSvgStyle, cut_svg, default_style
 from sheetgen.io.dxf import dxf_bytes
 from sheetgen.io.svg import svg_document
 from sheetgen.production.runs import PlacedSheet
@@ -30,8 +35,10 @@ def sheet_svg(sheet: PlacedSheet, size_mm: tuple[float, float], margin_mm: float
 
 
 def _drawn(args) -> tuple[bytes, str]:
-    contours, sheet, size_mm, margin_mm, dxf_version = args
-    return dxf_bytes(list(contours), list(sheet.marks), dxf_version), sheet_svg(sheet, size_mm, margin_mm)
+    contours, sheet, size_mm, dxf_version, style = args
+    w, h = size_mm
+    return (dxf_bytes(list(contours), list(sheet.marks), dxf_version),
+            cut_svg(list(contours), list(sheet.marks), w, h, style, title=sheet_title(sheet)))
 
 
 def map_jobs(fn, args: list, jobs: int) -> list:
@@ -48,9 +55,13 @@ def map_jobs(fn, args: list, jobs: int) -> list:
 
 def write_sheets(out_dir: Path, sheets: Sequence[PlacedSheet], size_mm: tuple[float, float], margin_mm: float,
                  ordered_contours: Sequence[Sequence[Contour]] | None = None, dxf_version: str = "R2000",
-                 patterns: Sequence[Sequence[int]] | None = None, jobs: int = 1) -> list[str]:
+                 patterns: Sequence[Sequence[int]] | None = None, jobs: int = 1,
+                 svg_style: CutSvgStyle | None = None) -> list[str]:
     """Write each sheet's DXF (contours in the order given: the cut order when
-    ``ordered_contours`` is given, else the nester's) and its SVG preview.
+    ``ordered_contours`` is given, else the nester's) and its cut-ready SVG
+    (the same contours in the same order; ``svg_style`` its colours and stroke,
+    default the parameters' defaults). ``margin_mm`` is kept for callers; the
+    cut-ready SVG draws no sheet border.
 
     ``patterns`` groups sheet positions (0-based) that are the same layout;
     each group is drawn once. Without it, sheets that share one contours tuple
@@ -67,7 +78,7 @@ def write_sheets(out_dir: Path, sheets: Sequence[PlacedSheet], size_mm: tuple[fl
     for g in groups:
         k = g[0]
         contours = ordered_contours[k] if ordered_contours is not None else sheets[k].contours
-        args.append((contours, sheets[k], size_mm, margin_mm, dxf_version))
+        args.append((contours, sheets[k], size_mm, dxf_version, svg_style or default_style()))
     drawn = map_jobs(_drawn, args, jobs)
     names: dict[int, str] = {}  # sheet position -> file name; the groups cover every position
     for g, (dxf, svg) in zip(groups, drawn):

@@ -62,4 +62,5 @@ def pinion(spec, L: Layout, drive) -> Blank:
     placements = tuple(place(Y, Z, (L.wheel_x_mm + i * t, L.pinion_y_mm, L.pinion_z_mm))
                        for i in range(L.gear_layers))
     return _gear_blank("pinion", drive.pinion, bore, placements,
-                       f"motor pinion, {spec.drive.pinion_teeth} teeth, press fit on the motor shaft")
+                       f"motor pinion, {spec.drive.pinion_teeth} teeth, press fit on the motor shaft"
+                       + ("; glue the layers" if L.gear_layers > 1 else ""))
