@@ -258,13 +258,18 @@ class _Blocking:
                         return True
         return False
 
-    def masks(self) -> list[list[int]]:
-        """hits[k][a]: the items a runs into along AXES[k], as a bit mask over item indices."""
+    def masks(self, meshing: frozenset = frozenset()) -> list[list[int]]:
+        """hits[k][a]: the items a runs into along AXES[k], as a bit mask over item indices.
+        Parts of a ``meshing`` pair (gears) never stop each other: their teeth are turned
+        into mesh by hand as the second goes in."""
         n = len(self.items)
         hits = [[0] * n for _ in AXES]
+        pairs = {frozenset(p) for p in meshing}
         for k in range(len(AXES)):
             for a in range(n):
                 for b in range(n):
+                    if frozenset((self.items[a].part, self.items[b].part)) in pairs:
+                        continue
                     if a != b and self.blocks(a, b, k):
                         hits[k][a] |= 1 << b
         return hits
@@ -288,7 +293,9 @@ class _Planner:
         self.items = kit_items(kit)
         self.blk = _Blocking(self.items)
         self.keys = [_natural_key(it, self.blk.boxes[i]) for i, it in enumerate(self.items)]
-        self.hits = self.blk.masks()
+        from sheetgen.design.kit import MESHING
+
+        self.hits = self.blk.masks(MESHING)
         self.joints = kit.joints
         self.components = kit.components
         parts_joined = {frozenset((j.tab_part, j.slot_part)) for j in kit.joints}
