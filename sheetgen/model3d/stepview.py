@@ -77,11 +77,10 @@ def step_picture_png(kit: Kit, step: Step, bounds_mm: np.ndarray | None = None) 
     if bounds_mm is None:
         bounds_mm = kit_bounds_mm(kit)
     lo, hi = np.asarray(bounds_mm[0], dtype=float), np.asarray(bounds_mm[1], dtype=float)
-    centre, half = (lo + hi) / 2, float(np.max(hi - lo)) / 2
-    ax.set_xlim(centre[0] - half, centre[0] + half)
-    ax.set_ylim(centre[1] - half, centre[1] + half)
-    ax.set_zlim(centre[2] - half, centre[2] + half)
-    ax.set_box_aspect((1.0, 1.0, 1.0), zoom=1.35)
+    ax.set_xlim(lo[0], hi[0])
+    ax.set_ylim(lo[1], hi[1])
+    ax.set_zlim(lo[2], hi[2])
+    ax.set_box_aspect(tuple(float(v) for v in np.maximum(hi - lo, 1.0)), zoom=1.25)  # true proportions
     ax.view_init(elev=VIEW_ELEV_DEG, azim=VIEW_AZIM_DEG)
     ax.set_axis_off()
     buf = io.BytesIO()
