@@ -660,7 +660,7 @@ def assembly_steps(kit: Kit, spec, hardware: tuple | None = None) -> tuple[Step,
         for n in fresh:
             first_step.setdefault(part_of[n], number)
         names = list(dict.fromkeys(part_of[n] for n in new))
-        counts = tuple((p, sum(1 for n in new if part_of[n] == p)) for p in names if p in parts)
+        counts = () if group else tuple((p, sum(1 for n in new if part_of[n] == p)) for p in names if p in parts)
         comps = tuple(p for p in names if p not in parts)
         before = {part_of[n] for n in placed}
         title, how = _words(planner, mvs, names, placed, bench, group, number == 1)
