@@ -300,7 +300,7 @@ class _Planner:
         self.components = kit.components
         parts_joined = {frozenset((j.tab_part, j.slot_part)) for j in kit.joints}
         n = len(self.items)
-        self.adjacent = {i: set() for i in range(n)}
+        self.adjacent: dict[int, set[int]] = {i: set() for i in range(n)}
         for i in range(n):
             for j in range(i + 1, n):
                 if frozenset((self.items[i].part, self.items[j].part)) in parts_joined and self._touch(i, j):
@@ -643,10 +643,9 @@ def assembly_steps(kit: Kit, spec, hardware: tuple | None = None) -> tuple[Step,
     parts = {p.name: p for p in kit.parts}
     gears = {n for pair in MESHING for n in pair}
     acrylic = "acryl" in spec.sheet.material
-    joints = {(j.tab_part, j.slot_part): j for j in kit.joints}
     placed: list[str] = []
     first_step: dict[str, int] = {}
-    raw = []
+    raw: list[Step] = []
     for number, (tag, mvs) in enumerate(_group_moves(moves), start=1):
         new = [n for mv in mvs for n in mv.items]
         bench = tag.startswith("bench:")
@@ -699,7 +698,8 @@ def assembly_steps(kit: Kit, spec, hardware: tuple | None = None) -> tuple[Step,
                           and abs(items[n].pieces[0].placement.matrix[0, 2]) > 0.5 for n in fresh)
         if turning_now:
             cautions.append(TURNING_CAUTION)
-        raw.append([number, title, how, counts, comps, notes, cautions, tuple(new), shown, mvs[-1].approach, bench])
+        raw.append(Step(number, title, how, counts, comps, (), tuple(notes), tuple(dict.fromkeys(cautions)),
+                        tuple(new), shown, mvs[-1].approach, bench))
         if not bench:
             placed += [n for n in new if n not in placed]
     # hardware: in the step where the last of its parts lands; final items in a last step
@@ -710,8 +710,8 @@ def assembly_steps(kit: Kit, spec, hardware: tuple | None = None) -> tuple[Step,
             if not mv.bench:
                 for n in mv.items:
                     where[part_of[n]] = number
-    for p in kit.parts + tuple(kit.components):  # bench-built parts land with their group
-        where.setdefault(p.name, first_step.get(p.name, last))
+    for name in [q.name for q in kit.parts] + [c.name for c in kit.components]:  # bench parts: their group
+        where.setdefault(name, first_step.get(name, last))
     hw_at: dict[int, list[tuple[str, int]]] = {}
     finals: list = []
     for h in hardware:
@@ -722,13 +722,12 @@ def assembly_steps(kit: Kit, spec, hardware: tuple | None = None) -> tuple[Step,
         hw_at.setdefault(max(where[n] for n in hp), []).append((h.item, h.qty_per_kit))
     steps = []
     for r in raw:
-        hw = tuple(hw_at.get(r[0], ()))
-        notes = list(r[5])
+        hw = tuple(hw_at.get(r.number, ()))
+        step_notes = r.notes
         if any(item == "bolt" for item, _ in hw):
-            notes.append("Bolt the stack: a bolt through each hole, washer under the nut; tighten evenly, "
-                         "snug, without crushing the sheet.")
-        steps.append(Step(r[0], r[1], r[2], r[3], r[4], hw, tuple(notes), tuple(dict.fromkeys(r[6])), r[7], r[8],
-                          r[9], r[10]))
+            step_notes += ("Bolt the stack: a bolt through each hole, washer under the nut; tighten evenly, "
+                           "snug, without crushing the sheet.",)
+        steps.append(dataclasses.replace(r, hardware=hw, notes=step_notes))
     if finals:
         fin_parts = [h.item for h in finals]
         steps.append(Step(last + 1, "Finish and set up", "Fit the " + ", ".join(fin_parts) + "; set the kit where "
@@ -786,8 +785,8 @@ def _words(planner: _Planner, mvs, names, placed, bench, group, first) -> tuple[
         return f"On the bench: join the {what}", f"Put the {what} together {approach}."
     if group:
         below = sorted({j.slot_part for j in kit_joints if j.tab_part in names and j.slot_part in before})
-        into = " and ".join(below) if below else "kit"
-        return (f"Set the {what} group into the {into}",
+        target = " and ".join(below) if below else "kit"
+        return (f"Set the {what} group into the {target}",
                 f"Bring the group {approach} and seat every tab in its slot.")
     if first:
         return f"Lay out the {what}", f"Put the {what} flat on the bench, top face up; everything else builds on it."

@@ -10,6 +10,7 @@ with a fixed size and resolution and no metadata, so the same kit gives the same
 from __future__ import annotations
 
 import io
+from typing import Any
 
 import numpy as np
 import shapely
@@ -55,13 +56,14 @@ def step_picture_png(kit: Kit, step: Step, bounds_mm: np.ndarray | None = None) 
 
     matplotlib.use("Agg", force=False)
     from matplotlib.figure import Figure
-    from mpl_toolkits.mplot3d.art3d import Poly3DCollection
+    from mpl_toolkits.mplot3d.art3d import Poly3DCollection  # type: ignore[import-untyped]
 
     items = {it.name: it for it in kit_items(kit)}
     new = set(step.new)
     fig = Figure(figsize=SIZE_IN, dpi=DPI)
-    ax = fig.add_axes((0.0, 0.0, 1.0, 1.0), projection="3d")
-    old_faces, new_faces = [], []
+    ax: Any = fig.add_axes((0.0, 0.0, 1.0, 1.0), projection="3d")
+    old_faces: list[np.ndarray] = []
+    new_faces: list[np.ndarray] = []
     for name in step.shown:
         it = items.get(name)
         if it is None:
