@@ -24,8 +24,11 @@ from pathlib import Path
 import numpy as np
 import pytest
 import shapely
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
-from tests.conftest import PARAMS
+from tests import _refs as R
+from tests.conftest import DEMO, PARAMS
 
 INSET_MM = 0.05
 GRID_MM = 1.0
@@ -151,6 +154,44 @@ def test_every_item_reaches_its_place_in_the_guides_order(params):
     assert len(moves) >= 10
 
 
+KITS = st.fixed_dictionaries({
+    "panel.width": st.integers(80, 240),
+    "panel.height": st.integers(60, 180),
+    "sheet.thickness": st.sampled_from([2.0, 3.0, 4.0, 6.0]),
+    "axle.height": st.integers(60, 180),
+    "axle.diameter": st.sampled_from([4.0, 6.0, 8.0]),
+    "drive.layers": st.integers(1, 2),
+    "joints.fit": st.sampled_from(["press", "snug", "slip"]),
+})
+
+
+# derandomized and few: each draw builds a kit and sweeps every item of it (seconds each)
+@settings(max_examples=4, deadline=None, derandomize=True)
+@given(KITS)
+def test_any_kit_goes_together_in_its_guides_order(params):
+    # the order is derived, not listed: for kits of other sizes every item still reaches its
+    # place, and every cut part is in a step as many times as the kit holds it
+    from sheetgen.design.assembly_order import assembly_steps
+    from sheetgen.design.kit import build_kit
+    from sheetgen.design.spec import load_spec
+    from sheetgen.errors import SheetgenError
+
+    try:
+        spec = load_spec(DEMO, [f"{k}={v}" for k, v in params.items()] + ["sheet.width=1000", "sheet.height=800"])
+        kit = build_kit(spec)
+    except SheetgenError as exc:
+        R.refused(str(exc).split(":")[0])
+        return
+    R.kept()
+    _check_order(kit, spec)
+    steps = assembly_steps(kit, spec)
+    qty: dict[str, int] = {}
+    for s in steps:
+        for name, q in s.parts:
+            qty[name] = qty.get(name, 0) + q
+    assert qty == {p.name: p.qty for p in kit.parts}
+
+
 def test_every_part_and_item_is_in_a_step(demo_kit, demo_spec):
     from sheetgen.design.assembly_order import assembly_steps, inferred_hardware
 
@@ -219,7 +260,6 @@ def test_guide_has_a_step_block_with_a_picture_for_every_step(out, page, demo_ki
     html = (out / "assembly.html").read_text(encoding="utf-8")
     assert "break-inside:avoid" in html and "page-break-inside:avoid" in html
     assert "http://" not in html and "https://" not in html and "<script" not in html
-    assert "assembly.html" in page.links or True
     report = _Page()
     report.feed((out / "report.html").read_text(encoding="utf-8"))
     assert "assembly.html" in report.links
