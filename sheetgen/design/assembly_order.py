@@ -84,7 +84,7 @@ class Move:
 # items
 
 
-def kit_items(kit: Kit) -> tuple[Item, ...]:
+def solid_items(kit: Kit) -> tuple[Item, ...]:
     """Every part instance and solid component of the kit as prisms at rotation 0."""
     out = []
     for part in kit.parts:
@@ -290,7 +290,7 @@ def _natural_key(it: Item, box: np.ndarray) -> tuple:
 
 class _Planner:
     def __init__(self, kit: Kit):
-        self.items = kit_items(kit)
+        self.items = solid_items(kit)
         self.blk = _Blocking(self.items)
         self.keys = [_natural_key(it, self.blk.boxes[i]) for i, it in enumerate(self.items)]
         from sheetgen.design.kit import MESHING

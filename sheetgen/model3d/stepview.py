@@ -16,7 +16,7 @@ import numpy as np
 import shapely
 from shapely.geometry import Polygon
 
-from sheetgen.design.assembly_order import Prism, Step, kit_items
+from sheetgen.design.assembly_order import Prism, Step, solid_items
 from sheetgen.design.part import Kit
 
 NEW_COLOUR = "#d9480f"  # the items put in at this step
@@ -105,7 +105,7 @@ def _render(kit: Kit, steps: tuple[Step, ...], bounds_mm: np.ndarray | None,
 def kit_bounds_mm(kit: Kit) -> np.ndarray:
     """The box round every solid of the kit: min and max corner, kit frame."""
     pts = []
-    for it in kit_items(kit):
+    for it in solid_items(kit):
         for p in it.pieces:
             xy = np.asarray(p.outline.exterior.coords, dtype=float)
             for z in (0.0, p.depth_mm):
@@ -117,7 +117,7 @@ def kit_bounds_mm(kit: Kit) -> np.ndarray:
 def kit_faces(kit: Kit) -> dict[str, np.ndarray]:
     """The drawn faces of every item of the kit, by item name."""
     out = {}
-    for it in kit_items(kit):
+    for it in solid_items(kit):
         pieces = [prism_faces(p) for p in it.pieces]
         out[it.name] = np.concatenate(pieces) if pieces else np.zeros((0, 4, 3))
     return out
