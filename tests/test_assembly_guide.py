@@ -19,7 +19,6 @@ import re
 import shutil
 import subprocess
 from html.parser import HTMLParser
-from pathlib import Path
 
 import numpy as np
 import pytest

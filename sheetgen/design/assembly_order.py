@@ -26,7 +26,6 @@ from __future__ import annotations
 import dataclasses
 import math
 from dataclasses import dataclass
-from functools import lru_cache
 
 import numpy as np
 import shapely
@@ -298,6 +297,7 @@ class _Planner:
         self.hits = self.blk.masks(MESHING)
         self.joints = kit.joints
         self.components = kit.components
+        self._completes: dict[tuple[frozenset[int], frozenset[int]], bool] = {}
         parts_joined = {frozenset((j.tab_part, j.slot_part)) for j in kit.joints}
         n = len(self.items)
         self.adjacent: dict[int, set[int]] = {i: set() for i in range(n)}
@@ -339,9 +339,14 @@ class _Planner:
                 return k
         return None
 
-    @lru_cache(maxsize=None)
     def completes(self, placed: frozenset[int], whole: frozenset[int]) -> bool:
         """The whole can be taken apart down to ``placed`` (so the rest can still go in)."""
+        key = (placed, whole)
+        if key not in self._completes:
+            self._completes[key] = self._take_apart(placed, whole)
+        return self._completes[key]
+
+    def _take_apart(self, placed: frozenset[int], whole: frozenset[int]) -> bool:
         current = whole
         while current != placed:
             loose = current - placed
