@@ -672,8 +672,12 @@ def assembly_steps(kit: Kit, spec, hardware: tuple | None = None) -> tuple[Step,
         rods = _rods(planner)
         on_rod = {planner.items[planner.blk.index[n]].part for n in items
                   if items[n].kind == "part" and any(_threaded(planner, planner.blk.index[n], r) for r in rods)}
+        # a part presses on when the rod it grips is already there; else the rod presses through it later
+        rods_in = [r for r in rods if r in placed]
         pressed = [p for p, _ in counts if p in on_rod
-                   and parts[p].outline_to_cut.area > parts[p].outline.area + 1e-6]
+                   and parts[p].outline_to_cut.area > parts[p].outline.area + 1e-6
+                   and any(_threaded(planner, planner.blk.index[n], r) for n in fresh if part_of[n] == p
+                           for r in rods_in)]
         if bench:
             tabbed = [j for j in kit.joints if j.tab_part in names and j.slot_part in names]
             if any(j.fit == "press" for j in tabbed):
@@ -691,8 +695,10 @@ def assembly_steps(kit: Kit, spec, hardware: tuple | None = None) -> tuple[Step,
                 notes.append(f"Glue the {q} {p} layers face to face, aligned, before the glue sets.")
         tab_joints = [j for j in kit.joints if j.tab_part in names and (j.slot_part in before or j.slot_part in names)]
         tab_joints += [j for j in kit.joints if j.slot_part in names and j.tab_part in before]
-        if tab_joints and not group:
+        if tab_joints:
             fit = tab_joints[0].fit
+            if fit == "press" and acrylic:
+                cautions.append(ACRYLIC_CAUTION)
             notes.append("Tabs into slots: " + ("a press fit, close them with a clamp, never a hammer."
                                                 if fit == "press" else "they go in by hand; square each joint "
                                                 "before the next part."))
