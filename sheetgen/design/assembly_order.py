@@ -670,26 +670,22 @@ def assembly_steps(kit: Kit, spec, hardware: tuple | None = None) -> tuple[Step,
         title, how = _words(planner, mvs, names, placed, bench, group, number == 1)
         notes, cautions = [], []
         rods = _rods(planner)
-        on_rod = {planner.items[planner.blk.index[n]].part for n in items
-                  if items[n].kind == "part" and any(_threaded(planner, planner.blk.index[n], r) for r in rods)}
         # a part presses on when the rod it grips is already there; else the rod presses through it later
-        rods_in = [r for r in rods if r in placed]
-        pressed = [p for p, _ in counts if p in on_rod
-                   and parts[p].outline_to_cut.area > parts[p].outline.area + 1e-6
-                   and any(_threaded(planner, planner.blk.index[n], r) for n in fresh if part_of[n] == p
-                           for r in rods_in)]
-        if bench:
-            tabbed = [j for j in kit.joints if j.tab_part in names and j.slot_part in names]
-            if any(j.fit == "press" for j in tabbed):
-                pressed.append(tabbed[0].tab_part)
-        if any(n in rods and any(part_of[m] in on_rod and _threaded(planner, planner.blk.index[m], n)
-                                 and parts[part_of[m]].outline_to_cut.area > parts[part_of[m]].outline.area + 1e-6
-                                 for m in placed) for n in fresh):
-            pressed.append("the bores it passes")
-        if pressed and not group:
+        pressed = list(dict.fromkeys(
+            part_of[n] for n in fresh if items[n].kind == "part" for r in rods
+            if r in placed and _threaded(planner, planner.blk.index[n], r) and _grips(planner, n, r, kit)))
+        gripping = list(dict.fromkeys(
+            part_of[m] for n in fresh if n in rods for m in placed
+            if items[m].kind == "part" and _threaded(planner, planner.blk.index[m], n) and _grips(planner, m, n, kit)))
+        if gripping:
+            notes.append(f"Press fit: the {' and '.join(gripping)} grip the rod. Push it through slowly and "
+                         f"evenly (a vice or a clamp), backing each of them with a block so it stays square; "
+                         f"never hammer.")
+            pressed.append(gripping[0])
+        elif pressed and not group:
             notes.append(PRESS_NOTE)
-            if acrylic:
-                cautions.append(ACRYLIC_CAUTION)
+        if pressed and not group and acrylic:
+            cautions.append(ACRYLIC_CAUTION)
         for p, q in counts:
             if q > 1 and _stacked(parts[p]):
                 notes.append(f"Glue the {q} {p} layers face to face, aligned, before the glue sets.")
@@ -765,6 +761,23 @@ def _threaded(planner: _Planner, i: int, rod: str) -> bool:
     axis = "xyz"[int(np.argmax(np.abs(w)))]
     across = [k for k, (name, _) in enumerate(AXES) if name[1] != axis]
     return all(planner.hits[k][i] >> j & 1 for k in across)
+
+
+def _grips(planner: _Planner, name: str, rod: str, kit: Kit) -> bool:
+    """The instance's bore round the rod is cut tighter than drawn (a press fit on the rod)."""
+    it = planner.items[planner.blk.index[name]]
+    part = kit.part(it.part)
+    pl = it.pieces[0].placement
+    line = planner.items[planner.blk.index[rod]].pieces[-1].placement.translation_mm
+    t = np.asarray(pl.translation_mm, dtype=float)
+    local = pl.matrix.T @ (np.array([t[0], line[1], line[2]]) - t)
+    at = Point(float(local[0]), float(local[1]))
+    fit = part.outline_to_cut
+
+    def bore(poly: Polygon) -> float:
+        return next((Polygon(r).area for r in poly.interiors if Polygon(r).contains(at)), 0.0)
+
+    return bore(fit) < bore(part.outline) - 1e-6
 
 
 def _on(planner: _Planner, i: int, others: list[str], side: str) -> list[str]:
