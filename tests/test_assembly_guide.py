@@ -118,6 +118,7 @@ def _check_order(kit, spec):
     bench: dict[str, list[str]] = {}
     for mv in moves:
         here = bench.setdefault(mv.bench, []) if mv.bench else kit_placed
+        assert mv.approach != "?", f"{', '.join(mv.items)}: the guide found no straight path"
         if mv.approach:
             hit = first_collision([bodies[n] for n in mv.items], [bodies[n] for n in here], mv.approach)
             assert hit is None, f"{', '.join(mv.items)} coming {mv.approach} runs into {hit}"

@@ -32,7 +32,6 @@ import shapely
 from shapely import affinity
 from shapely.geometry import LineString, Point, Polygon
 
-from sheetgen.errors import GeometryBug
 from sheetgen.design.part import Component, Kit
 from sheetgen.geometry.placement import Placement, mat3
 from sheetgen.geometry.shapes import disc
@@ -40,6 +39,7 @@ from sheetgen.geometry.shapes import disc
 EPS_MM = 1e-4  # overlaps along a line shorter than this are contact, not collision
 AREA_EPS_MM2 = 1e-3  # shadows sharing less area than this only touch
 FAR_MM = 1e5
+NO_STRAIGHT_PATH = "?"  # a Move's approach when no straight line brings the item past what is there
 
 # the six directions an item may come from, named for the reader (kit frame: x along the axle, z up)
 AXES: tuple[tuple[str, tuple[float, float, float]], ...] = (
@@ -271,6 +271,14 @@ class _Blocking:
                         continue
                     if a != b and self.blocks(a, b, k):
                         hits[k][a] |= 1 << b
+        # two items that stop each other every way already share volume: an interference the
+        # 3D check reports; it says nothing about the order, so the pair is left out
+        for a in range(n):
+            for b in range(n):
+                if all(hits[k][a] >> b & 1 for k in range(len(AXES))):
+                    for k in range(len(AXES)):
+                        hits[k][a] &= ~(1 << b)
+                        hits[k][b] &= ~(1 << a)
         return hits
 
 
@@ -395,22 +403,33 @@ class _Planner:
         for g in fits:
             if self.completes(placed | g, whole):
                 return g, ways[g]
-        return None, None
+        # no choice keeps every later item reachable: the first that fits now, then, where
+        # nothing fits, the next single item with no straight path (the guide says so)
+        singles = [g for g in fits if len(g) == 1]
+        if singles:
+            return singles[0], ways[singles[0]]
+        return next(g for g in cands if len(g) == 1), None
 
     def order(self, whole: frozenset[int], bench: str = "") -> list[Move]:
-        first = min(whole, key=lambda x: self.keys[x])
+        slots = {j.slot_part for j in self.joints}
+
+        def root_key(i: int):
+            # the part the others stand in (most joints' slot part), then the lowest
+            it = self.items[i]
+            others = {self.items[j].part for j in whole} - {it.part}
+            held = sum(1 for j in self.joints if j.slot_part == it.part and j.tab_part in others)
+            return (it.rotating, -held if it.part in slots else 0, self.keys[i])
+
+        first = min(whole, key=root_key)
         placed = frozenset((first,))
         moves = [Move((self.items[first].name,), "", bench)]
         while placed != whole:
             rest = whole - placed
             g, k = self._pick(rest, placed, whole)
-            if g is None or k is None:
-                left = ", ".join(sorted(self.items[i].name for i in rest))
-                raise GeometryBug(f"no assembly order: {left} cannot be put in along a straight line")
             names = tuple(self.items[i].name for i in sorted(g, key=lambda x: self.keys[x]))
             if len(g) > 1:
                 moves += self.order(g, bench="+".join(sorted({self.items[i].part for i in g})))
-            moves.append(Move(names, AXES[k][0], bench))
+            moves.append(Move(names, NO_STRAIGHT_PATH if k is None else AXES[k][0], bench))
             placed = placed | g
         return moves
 
@@ -597,7 +616,8 @@ class Step:
     bench: bool = False
 
 
-SIDE = {"+z": "from above", "-z": "from below", "+x": "from the drive end (+x)", "-x": "from the plain end (-x)",
+SIDE = {NO_STRAIGHT_PATH: "by tilting or flexing it past the parts already there (no straight path)",
+        "+z": "from above", "-z": "from below", "+x": "from the drive end (+x)", "-x": "from the plain end (-x)",
         "+y": "from the +y side", "-y": "from the -y side", "": "flat on the bench"}
 
 PRESS_NOTE = ("Press fit: press it home square with a vice or a clamp between two flat blocks, slowly and "
