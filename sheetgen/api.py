@@ -105,7 +105,7 @@ def build(spec: Spec, kits: int = 1, *, model: bool = True, jobs: int | None = N
 def write_build(build: BuildResult, out_dir: str | Path, *, dxf_version: str = "R2000",
                 into_existing: bool = False) -> Path:
     """Write a build into a folder (parts/, sheets/, model/, summary.json,
-    report.html), as ``sheetgen build`` does; the folder must be new, empty or
+    report.html, assembly.html), as ``sheetgen build`` does; the folder must be new, empty or
     one sheetgen wrote before.
 
     >>> write_build(build(load_params(), model=False), "out")   # doctest: +SKIP

@@ -23,7 +23,8 @@ from sheetgen.cli import into_existing_option, set_option
 @into_existing_option
 @set_option
 def command(params, kits, out_dir, dxf_version, model, overrides, into_existing, allow_failing):
-    """Parts, nested sheets in cut order, report.html and summary.json for a production run.
+    """Parts, nested sheets in cut order, report.html, the assembly guide (assembly.html) and
+    summary.json for a production run.
 
     Without PARAMS it runs the demo parameters that ship with sheetgen. When a
     design check fails the files are still written (report.html says which check

@@ -41,11 +41,15 @@ LABEL_MAX_MM = 4.0
 LABEL_MIN_MM = 1.5
 
 
-def build_kit(spec, *, check_clearance: bool = True) -> Kit:
+def build_kit(spec, *, check_clearance: bool = True, step_labels: bool | None = None) -> Kit:
     """All parts and components of one kit, in the kit frame at rotation 0.
 
     Raises ParameterError when a part does not fit the sheet or the turning
-    frame would come closer than frame.clearance to a fixed part.
+    frame would come closer than frame.clearance to a fixed part. With
+    ``step_labels`` (by default whenever the clearance is checked, that is for
+    every kit that is made rather than tried by the solver) each part's label
+    carries the number of its assembly step ("3 rib"; the number alone where
+    the name does not fit).
     """
     from sheetgen.design.parts.drive import drive_pair
 
@@ -64,8 +68,22 @@ def build_kit(spec, *, check_clearance: bool = True) -> Kit:
     _check_fits_sheet(spec, kit)
     if check_clearance:
         _check_clearance(spec, kit)
+    if check_clearance if step_labels is None else step_labels:
+        kit = _with_step_labels(kit)
     return kit
 
+
+def _with_step_labels(kit: Kit) -> Kit:
+    """The kit with each part's label led by the numbers of its assembly steps."""
+    from sheetgen.design.assembly_order import part_steps
+
+    steps = part_steps(kit)
+    parts = []
+    for part in kit.parts:
+        numbers = ",".join(str(n) for n in steps.get(part.name, ()))
+        others = tuple(m for m in part.marks if m.layer != LAYER_LABEL)
+        parts.append(dataclasses.replace(part, marks=_label(part.name, part.outline, numbers) + others))
+    return dataclasses.replace(kit, parts=tuple(parts))
 
 def travel_deg(spec) -> tuple[float, float]:
     """The rotation range the frame must clear: the travel limit either side of rest."""
@@ -122,13 +140,17 @@ def _joints(spec, blanks: dict[str, Blank]):
     return tabs, slots, joints
 
 
-def _label(name: str, outline: Polygon) -> tuple[Mark, ...]:
+def _label(name: str, outline: Polygon, step: str = "") -> tuple[Mark, ...]:
+    """The part's engraved label at the point farthest inside it: its assembly step
+    number(s) and name ("3 rib"), or the number alone where that does not fit at
+    LABEL_MIN_MM high; no label where nothing fits."""
     p = polylabel(outline, tolerance=0.25)
     room = outline.boundary.distance(p)
-    height = min(LABEL_MAX_MM, 0.7 * room, room / (0.3 * len(name)))
-    if height < LABEL_MIN_MM:
-        return ()
-    return (Mark(LAYER_LABEL, "text", ((round(p.x, 3), round(p.y, 3)),), name, round(height, 2)),)
+    for text in ((f"{step} {name}", step) if step else (name,)):
+        height = min(LABEL_MAX_MM, 0.7 * room, room / (0.3 * len(text)))
+        if height >= LABEL_MIN_MM:
+            return (Mark(LAYER_LABEL, "text", ((round(p.x, 3), round(p.y, 3)),), text, round(height, 2)),)
+    return ()
 
 
 def _make_part(spec, blank: Blank, tabs: list[Polygon], slots: list[Polygon]) -> Part:

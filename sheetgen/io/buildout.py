@@ -1,5 +1,6 @@
 """Writing a build to a folder: parts, sheets in cut order, the 3D model,
-summary.json and report.html, staged so that a failure leaves nothing behind."""
+summary.json, report.html and the assembly guide (assembly.html), staged so
+that a failure leaves nothing behind."""
 
 from __future__ import annotations
 
@@ -56,4 +57,7 @@ def write_build(build: BuildResult, out_dir: str | Path, *, dxf_version: str = "
             picture = assembly_svg(build.model.bodies, f"sheetgen kit: {name}")
             (tmp / "model" / "assembly.svg").write_text(picture, encoding="utf-8")
         (tmp / "report.html").write_text(render_report(build, picture), encoding="utf-8")
+        from sheetgen.io.assembly_html import assembly_guide_html
+
+        (tmp / "assembly.html").write_text(assembly_guide_html(build.kit, spec), encoding="utf-8")
     return Path(out_dir)

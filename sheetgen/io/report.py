@@ -100,6 +100,7 @@ def render_report(build, assembly_svg: str | None = None) -> str:
            f"{escape(s['parameters'])}</title><style>{CSS}</style></head><body><main>",
            f"<h1>Tracker kit production run: {escape(s['parameters'])}</h1>",
            f"<p class=\"lead\">{job}</p>",
+           '<p><a href="assembly.html">Assembly guide: the steps in order, with pictures (assembly.html)</a></p>',
            f"<div class=\"verdict {'ok' if ok else 'bad'}\">"
            f"{'All design checks pass' if ok else 'A design check fails: see the checks below before cutting'}</div>",
            '<div class="figures">',
