@@ -34,9 +34,13 @@ JOINTS = (
     ("stretcher", "end-", "axle-support"),
     ("motor-mount", "foot", "base"),
     ("rib", "top", "tray"),
+    ("end-stop", "foot", "base"),
 )
 # Turning and fixed parts that are meant to touch.
 MESHING = frozenset({("wheel", "pinion")})
+# Turning and fixed parts meant to meet at the ends of the travel, and only there (the end stops:
+# sheetgen/design/parts/stops.py); the clearance sweeps leave them out and model3d.stops checks them.
+STOPS = frozenset({("stop-arm", "end-stop")})
 LABEL_MAX_MM = 4.0
 LABEL_MIN_MM = 1.5
 
@@ -74,7 +78,7 @@ def travel_deg(spec) -> tuple[float, float]:
 
 def frame_sweep(kit: Kit, angles_deg: tuple[float, float], step_deg: float = 1.0):
     """Least clearance between the turning frame and the fixed parts (y-z projection)."""
-    return sweep_clearance(kit_silhouettes(kit), angles_deg, step_deg, MESHING)
+    return sweep_clearance(kit_silhouettes(kit), angles_deg, step_deg, MESHING | STOPS)
 
 
 # ---------------------------------------------------------------------------

@@ -39,9 +39,10 @@ def _centre_distance_mm(spec) -> float:
 
 
 def _height_floor_mm(spec) -> float:
-    from sheetgen.design.layout import motor_floor_height_mm
+    from sheetgen.design.layout import motor_floor_height_mm, stop_floor_height_mm
 
-    return max(key_lo("axle.height"), motor_floor_height_mm(spec, _centre_distance_mm(spec)))
+    return max(key_lo("axle.height"), motor_floor_height_mm(spec, _centre_distance_mm(spec)),
+               stop_floor_height_mm(spec))
 
 
 def _build(spec, height_mm: float):
