@@ -194,6 +194,10 @@ def _figures(spec, L: Layout, drive) -> tuple[tuple[str, float], ...]:
         ("panel_z_mm", L.panel_z_mm),
         ("base_length_mm", L.base_x1_mm - L.base_x0_mm),
         ("base_width_mm", 2 * L.base_half_y_mm),
+        ("stop_angle_deg", L.stop_angle_deg),
+        ("stop_radius_mm", L.stop_radius_mm),
+        ("stop_contact_mm", L.stop_contact_mm),
+        ("axle_tilt_deg", L.tilt_deg),
     )
 
 
