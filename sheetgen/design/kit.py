@@ -35,6 +35,8 @@ JOINTS = (
     ("motor-mount", "foot", "base"),
     ("rib", "top", "tray"),
     ("end-stop", "foot", "base"),
+    ("wedge", "top", "base"),
+    ("wedge", "bottom", "ground-plate"),
 )
 # Turning and fixed parts that are meant to touch.
 MESHING = frozenset({("wheel", "pinion")})
@@ -55,7 +57,8 @@ def build_kit(spec, *, check_clearance: bool = True) -> Kit:
 
     drive = drive_pair(spec)
     layout = compute_layout(spec, drive.centre_distance_mm)
-    blanks = {b.name: b for b in (factory(spec, layout, drive) for factory in part_families())}
+    made = (factory(spec, layout, drive) for factory in part_families())
+    blanks = {b.name: b for b in made if b is not None}  # a family may not apply (the wedge: polar only)
     tabs, slots, joints = _joints(spec, blanks)
     parts = tuple(_make_part(spec, b, tabs.get(b.name, []), slots.get(b.name, [])) for b in blanks.values())
     kit = Kit(
@@ -90,6 +93,8 @@ def _joints(spec, blanks: dict[str, Blank]):
     received: dict[str, list[list[Polygon]]] = {}  # slot part -> per instance footprints
     joints = []
     for tab_name, edge_name, slot_name in JOINTS:
+        if tab_name not in blanks or slot_name not in blanks:
+            continue  # a family this kit does not have (the wedge of a polar axle)
         tb, sb = blanks[tab_name], blanks[slot_name]
         edge = tb.edge(edge_name)
         centres, width = tab_layout(edge.length_mm, t, spec.joints.tab_width_mm)

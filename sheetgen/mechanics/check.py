@@ -16,6 +16,8 @@ from __future__ import annotations
 
 import math
 
+import numpy as np
+
 from sheetgen.errors import ParameterError
 from sheetgen.mechanics.teeth import LEWIS_Y_TABLE
 from sheetgen.mechanics import loads, tracking
@@ -26,7 +28,7 @@ from sheetgen.mechanics.massprops import suggest_counterweight
 from sheetgen.mechanics.materials import sheet_material
 from sheetgen.design.part import Kit
 from sheetgen.mechanics.balance_report import BalanceReport, Check
-from sheetgen.mechanics.load_geometry import ground_and_footprint
+from sheetgen.mechanics.load_geometry import ground_contact, to_ground_frame
 from sheetgen.mechanics.load_torque import axle_load
 from sheetgen.mechanics.stops import STOP_BEARING_SAFETY, StopFigures, stop_figures
 
@@ -64,8 +66,10 @@ def balance_check(kit: Kit, spec) -> BalanceReport:
                                 drive.wheel_teeth, face, mat.bending_strength_MPa, chk.tooth_safety,
                                 motor.stall_torque_Nm)
 
-    # tipping: wind from either side across the axle; the base's lee edge
-    ground_z, y_lo, y_hi = ground_and_footprint(kit)
+    # tipping: wind from either side across the axle; the lee edge of what the kit stands on,
+    # in the ground frame (a polar kit's wedge tilts the kit: sheetgen.mechanics.load_geometry)
+    ground = ground_contact(kit)
+    ground_z, y_lo, y_hi = ground.ground_z_mm, ground.y_lo_mm, ground.y_hi_mm
     cp_radius = math.hypot(wind.centroid_y_mm, wind.centroid_z_mm) + loads.CP_SHIFT_CHORDS * wind.chord_mm
     height = -ground_z + cp_radius
     base_mid = 0.5 * (y_lo + y_hi)
@@ -78,8 +82,21 @@ def balance_check(kit: Kit, spec) -> BalanceReport:
             uplift_lever_mm=abs(edge) + cp_radius,
             ballast_lever_mm=abs(edge - base_mid),
             safety=chk.tipping_safety, range_deg=tr.range_deg))
+    if ground.tilt_deg > 0:
+        # the panel faces up the tilt: the wind also pushes along the ground, over the ground plate's ends
+        cg_x = float(to_ground_frame(np.asarray(mp.total_cg_mm, dtype=float), ground.tilt_deg)[0])
+        x_mid = 0.5 * (ground.x_lo_mm + ground.x_hi_mm)
+        for edge, sign in ((ground.x_hi_mm, 1.0), (ground.x_lo_mm, -1.0)):
+            tips.append(loads.tipping_along_axle_figures(
+                wind.force_N, height, ground.tilt_deg, mp.total_mass_kg,
+                cg_lever_mm=max(0.0, sign * (edge - cg_x)),
+                uplift_lever_mm=abs(edge) + cp_radius,
+                ballast_lever_mm=abs(edge - x_mid), safety=chk.tipping_safety))
+        if not ground.x_lo_mm <= cg_x <= ground.x_hi_mm:
+            notes.append(f"the kit's centre of mass ({cg_x:.0f} mm along the ground) is outside its ground plate "
+                         f"({ground.x_lo_mm:.0f} to {ground.x_hi_mm:.0f} mm): it tips over without wind; screw it down")
     tipping = max(tips, key=lambda t: t.ballast_kg)
-    if tilt > 0:
+    if tilt > 0 and ground.tilt_deg <= 0:
         notes.append("tipping is figured for the base standing level; a polar kit's inclined mount "
                      "needs its own anchoring")
 

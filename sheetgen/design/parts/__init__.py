@@ -60,7 +60,7 @@ class Blank:
 
 def part_families():
     """The registered factories, in the order parts are listed."""
-    from sheetgen.design.parts import axle_hardware, drive, frame, stand, stops
+    from sheetgen.design.parts import axle_hardware, drive, frame, stand, stops, wedge
 
     return (
         stand.base,
@@ -77,4 +77,6 @@ def part_families():
         drive.pinion,
         stops.stop_arm,
         stops.end_stop,
+        wedge.wedge,  # polar axle only (None otherwise)
+        wedge.ground_plate,  # polar axle only (None otherwise)
     )
