@@ -26,6 +26,7 @@ from sheetgen.design.parts import Blank, round_hole
 X, Z = (1.0, 0.0, 0.0), (0.0, 0.0, 1.0)
 GROUND_MARGIN_MM = 10.0  # ground plate beyond the wedge's ends (our rule)
 ANCHOR_INSET_MM = 8.0
+OVERLAP_MM = 1e-7  # far under the part grid (sheetgen.geometry.shapes.GRID_MM)
 
 
 def ground_directions(tilt_deg: float) -> tuple[tuple[float, float], tuple[float, float]]:
@@ -55,9 +56,13 @@ def wedge(spec, L: Layout, drive) -> Blank | None:
         return None
     a, b, c, d = wedge_corners(L)
     t = L.t_mm
+    # the bottom edge runs askew in the plate's plane: drawn a rounding's width (OVERLAP_MM) below the
+    # edge its tabs grow from, so that they join the outline (the grid snap of the part takes it back)
+    _, u = ground_directions(L.tilt_deg)
+    c_, d_ = ((p[0] - OVERLAP_MM * u[0], p[1] - OVERLAP_MM * u[1]) for p in (c, d))
     return Blank(
         name="wedge",
-        outline=Polygon([a, b, c, d]),
+        outline=Polygon([a, b, c_, d_]),
         placements=(place(X, Z, (0.0, L.wedge_y_mm, 0.0)), place(X, Z, (0.0, -L.wedge_y_mm + t, 0.0))),
         description="side of the wedge that tilts the axle at the latitude",
         edges=(("top", Edge(a, b, +1)), ("bottom", Edge(d, c, -1))),
