@@ -224,7 +224,8 @@ def _checks(spec, mp, tr, g_max, load, df, dtm, year, tooth, tipping, cw, materi
         "stands in the design wind", ok, tipping.overturning_Nm, tipping.restoring_Nm, "N·m",
         (f"wind moment x check.tipping_safety {tipping.overturning_Nm:.3g} N·m vs the kit's weight "
          f"{tipping.restoring_Nm:.3g} N·m")
-        + ("" if ok else f"; screw the base down or add {tipping.ballast_kg:.2f} kg ballast at its middle"),
+        + ("" if ok else f"; screw the {'ground plate' if tr.axle_tilt_deg > 0 else 'base'} down "
+           f"or add {tipping.ballast_kg:.2f} kg ballast at its middle"),
         binding=False))
     return out
 
