@@ -321,8 +321,9 @@ RULES: tuple[Rule, ...] = (
          f"{BORDER_BOLT_MATERIAL_MM:g} mm each side, and sheet.thickness + 3 mm less the ledge", _border),
     Rule("teeth_carry_load", ("drive.module", "drive.layers"),
          "the smallest ISO 54 module from max(1 mm, half the sheet) (the largest finer one, down to 1 mm, when "
-         "the motor needs a ratio the wheel cannot reach) and the fewest layers whose Lewis tooth stress under the load, "
-         "and under the motor stalled at the end stops, stays within the tooth check's allowable", _teeth_carry_load),
+         "the motor needs a ratio the wheel cannot reach) and the fewest layers whose Lewis tooth stress under the "
+         "load, and under the motor stalled at the end stops, stays within the tooth check's allowable",
+         _teeth_carry_load),
     Rule("pinion_fits_shaft", ("drive.pinion_teeth",),
          f"the fewest teeth (from {MIN_PINION_TEETH}) whose root circle leaves the gear web round the motor shaft",
          _pinion_fits_shaft),
@@ -336,7 +337,8 @@ RULES: tuple[Rule, ...] = (
          "at least 1 mm from the support", _motor_shaft_reach),
     Rule("axle_clears_travel", ("axle.height",),
          f"the lowest height, on a {HEIGHT_GRID_MM:g} mm grid, keeping frame.clearance (plus at most "
-         f"{HEIGHT_SURPLUS_MM:g} mm) through the travel and the motor off the base",
+         f"{HEIGHT_SURPLUS_MM:g} mm) through the travel, the motor off the base and the stop arm its shortest "
+         "contact line",
          _axle_clears_travel),
 )
 RULE_BY_NAME = {r.name: r for r in RULES}
