@@ -154,7 +154,8 @@ def test_running_parts_and_least_clearance_of_the_demo(kits):
     from sheetgen.design.layout import MOUNT_GAP_MM
 
     assert spec.drive.mount_gap_mm >= MOUNT_GAP_MM
-    pair = next(x for x in report.closest if (x.turning, x.fixed) == ("wheel#1", "motor-mount#1"))
+    # (the nearest wheel layer: the demo's teeth take drive.layers = 2 to carry the motor stalled at the end stops)
+    pair = next(x for x in report.closest if x.turning.startswith("wheel#") and x.fixed == "motor-mount#1")
     assert pair.distance_mm == pytest.approx(spec.drive.mount_gap_mm, abs=1e-9) and pair.steady
     assert c.distance_mm <= pair.distance_mm
     assert [x.distance_mm for x in report.closest] == sorted(x.distance_mm for x in report.closest)
@@ -367,7 +368,8 @@ def test_a_lifted_bezel_floats_and_a_motor_off_its_mount_is_cut_off(demo_spec, d
     spec = load_spec(DEMO, ["drive.backlash=0.3"])
     off = build_model(_moved(build_kit(spec), "", comp_name="motor", dx=3.0), spec)
     floating, detached = find_floating(off, reach)
-    assert floating == [] and sorted(detached) == ["motor", "pinion#1"]
+    pinions = [f"pinion#{i + 1}" for i in range(spec.drive.layers)]  # one per drive layer
+    assert floating == [] and sorted(detached) == ["motor", *pinions]
     assert find_interference(off) == []
 
 
@@ -558,8 +560,9 @@ def test_text_summary_names_the_figures(kits):
     text = render_text(report, "out", 1.0, 2.0, 0.5)
     assert text.startswith("Assembly: OK")
     # the demo's derived drive.mount_gap (the layout solver) is the wheel's gap to the mount
-    assert (f"least clearance: {spec.drive.mount_gap_mm:.3f} mm, wheel#1 to motor-mount#1 at every angle"
-            in text)
+    # (its outer layer: the demo's wheel has drive.layers layers)
+    assert (f"least clearance: {spec.drive.mount_gap_mm:.3f} mm, wheel#{spec.drive.layers} to motor-mount#1 "
+            "at every angle" in text)
     assert "frame over the fixed parts" in text and "pinch" in text
 
 

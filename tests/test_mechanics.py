@@ -389,12 +389,17 @@ def test_failing_variants_say_which_check_and_why():
     # (gear size pinned: left at "auto" the layout solver would add layers until the teeth carry the load;
     # continuous drive, so the pulse checks stay out of it)
     strong = [("drive.wheel_teeth", 72), ("motor.usable_fraction", 0.9), ("motor.stall_torque", 0.5),
-              ("drive.module", 1.5), ("drive.layers", 1), ("drive.pulse_capacitance", 0.0), ("drive.pulse_voltage", 0.0)]
+              ("drive.module", 1.5), ("drive.layers", 1), ("drive.pulse_capacitance", 0.0), ("drive.pulse_voltage", 0.0),
+              # one layer where the demo derives two (its teeth carry the motor stalled at the end stops):
+              # the motor's place follows the thinner stack
+              ("drive.wheel_spacers", "auto"), ("drive.mount_gap", "auto")]
     r = _report(_demo_doc(), strong + [("check.tooth_safety", 20.0)])
     failed = [c for c in r.checks if c.binding and not c.passed]
-    assert not r.ok and [c.name for c in failed] == ["tooth stress"]
+    # (the stalled motor at the end stops loads the same teeth harder: that check fails with it)
+    assert not r.ok and [c.name for c in failed] == ["tooth stress", "teeth at motor stall"]
     assert "Lewis" in failed[0].reason and "drive.layers" in failed[0].reason
-    assert _report(_demo_doc(), strong).ok
+    assert "drive.layers" in failed[1].reason
+    assert _report(_demo_doc(), strong + [("drive.layers", 4), ("check.tooth_safety", 1.0)]).ok
     # a motor far too weak: the torque check fails and says what it needs and what would help
     r = _report(_demo_doc(), [("motor.stall_torque", 0.004), ("drive.wheel_teeth", 60)])
     failed = {c.name: c for c in r.checks if c.binding and not c.passed}

@@ -34,9 +34,15 @@ JOINTS = (
     ("stretcher", "end-", "axle-support"),
     ("motor-mount", "foot", "base"),
     ("rib", "top", "tray"),
+    ("end-stop", "foot", "base"),
+    ("wedge", "top", "base"),
+    ("wedge", "bottom", "ground-plate"),
 )
 # Turning and fixed parts that are meant to touch.
 MESHING = frozenset({("wheel", "pinion")})
+# Turning and fixed parts meant to meet at the ends of the travel, and only there (the end stops:
+# sheetgen/design/parts/stops.py); the clearance sweeps leave them out and model3d.stops checks them.
+STOPS = frozenset({("stop-arm", "end-stop")})
 LABEL_MAX_MM = 4.0
 LABEL_MIN_MM = 1.5
 
@@ -55,7 +61,8 @@ def build_kit(spec, *, check_clearance: bool = True, step_labels: bool | None = 
 
     drive = drive_pair(spec)
     layout = compute_layout(spec, drive.centre_distance_mm)
-    blanks = {b.name: b for b in (factory(spec, layout, drive) for factory in part_families())}
+    made = (factory(spec, layout, drive) for factory in part_families())
+    blanks = {b.name: b for b in made if b is not None}  # a family may not apply (the wedge: polar only)
     tabs, slots, joints = _joints(spec, blanks)
     parts = tuple(_make_part(spec, b, tabs.get(b.name, []), slots.get(b.name, [])) for b in blanks.values())
     kit = Kit(
@@ -92,7 +99,7 @@ def travel_deg(spec) -> tuple[float, float]:
 
 def frame_sweep(kit: Kit, angles_deg: tuple[float, float], step_deg: float = 1.0):
     """Least clearance between the turning frame and the fixed parts (y-z projection)."""
-    return sweep_clearance(kit_silhouettes(kit), angles_deg, step_deg, MESHING)
+    return sweep_clearance(kit_silhouettes(kit), angles_deg, step_deg, MESHING | STOPS)
 
 
 # ---------------------------------------------------------------------------
@@ -104,6 +111,8 @@ def _joints(spec, blanks: dict[str, Blank]):
     received: dict[str, list[list[Polygon]]] = {}  # slot part -> per instance footprints
     joints = []
     for tab_name, edge_name, slot_name in JOINTS:
+        if tab_name not in blanks or slot_name not in blanks:
+            continue  # a family this kit does not have (the wedge of a polar axle)
         tb, sb = blanks[tab_name], blanks[slot_name]
         edge = tb.edge(edge_name)
         centres, width = tab_layout(edge.length_mm, t, spec.joints.tab_width_mm)
@@ -212,6 +221,10 @@ def _figures(spec, L: Layout, drive) -> tuple[tuple[str, float], ...]:
         ("panel_z_mm", L.panel_z_mm),
         ("base_length_mm", L.base_x1_mm - L.base_x0_mm),
         ("base_width_mm", 2 * L.base_half_y_mm),
+        ("stop_angle_deg", L.stop_angle_deg),
+        ("stop_radius_mm", L.stop_radius_mm),
+        ("stop_contact_mm", L.stop_contact_mm),
+        ("axle_tilt_deg", L.tilt_deg),
     )
 
 

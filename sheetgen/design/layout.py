@@ -82,6 +82,21 @@ class Layout:
     # axle rod
     axle_x0_mm: float
     axle_x1_mm: float
+    # end stops (sheetgen/design/parts/stops.py): the stop arm on the axle outboard of the collar at -x,
+    # turning in the plane of the fixed end stop; they meet at +-stop_angle_deg
+    stop_x_mm: float = 0.0  # low-x face of the stop arm and of the end stop
+    stop_angle_deg: float = 0.0  # the travel limit
+    stop_half_angle_deg: float = 0.0  # half the arm's lug angle (its edges are radial)
+    stop_hub_r_mm: float = 0.0  # the arm's hub round the axle
+    stop_arm_r_mm: float = 0.0  # the arm's reach (outer end of its contact edges)
+    stop_cut_r_mm: float = 0.0  # the end stop's cut-out round the axle (inner end of the contact)
+    stop_gap_mm: float = 0.0  # gap between the arm and the end stop everywhere but at the contact faces
+    stop_half_y_mm: float = 0.0  # the end stop's half width
+    stop_top_z_mm: float = 0.0  # the end stop's top edge
+    # polar axle (sheetgen/design/parts/wedge.py): the wedge under the base tilts the axle by tilt_deg
+    tilt_deg: float = 0.0  # the axle's angle to the ground (0: the base stands on the ground)
+    wedge_foot_mm: float = 0.0  # the wedge's height at its low (-x) end
+    wedge_y_mm: float = 0.0  # outer face of the +y wedge plate (the other at -y)
 
     @property
     def panel_z_mm(self) -> float:
@@ -90,6 +105,16 @@ class Layout:
     @property
     def base_top_z_mm(self) -> float:
         return -self.axle_height_mm
+
+    @property
+    def stop_contact_mm(self) -> float:
+        """Length of the line along which the arm's edge meets the end stop's face."""
+        return self.stop_arm_r_mm - self.stop_cut_r_mm
+
+    @property
+    def stop_radius_mm(self) -> float:
+        """Radius of the middle of the contact line (where the stop force acts, the pressure uniform)."""
+        return 0.5 * (self.stop_arm_r_mm + self.stop_cut_r_mm)
 
 
 def compute_layout(spec, centre_distance_mm: float) -> Layout:
@@ -151,8 +176,17 @@ def compute_layout(spec, centre_distance_mm: float) -> Layout:
             f"axle.height = {H:g}: the motor body would reach the base; must be at least "
             f"{math.ceil(floor * 10) / 10:g} mm (or turn the pinion with drive.pinion_angle)")
     base_half_y = max(support_half_y, abs(pinion_y) + spec.motor.body_width_mm / 2 + 4.0) + 10.0
-    base_x0 = -(support_x + 2 * t) - 10.0
+    stop_x = -(support_x + 3 * t)  # outboard of the collar (which sits against the -x support)
+    base_x0 = stop_x - STOP_BASE_END_MM
     base_x1 = mount_x + t + spec.motor.body_length_mm + 5.0
+    stop = stop_geometry(spec, H, base_half_y)
+    base_half_y = max(base_half_y, stop.need_base_half_y_mm)
+    tilt = axle_tilt_deg(spec)
+    wedge_y = 0.0
+    if tilt > 0:
+        # the wedge plates stand outside every slot the base already has
+        base_half_y += t + WEDGE_EDGE_MM
+        wedge_y = base_half_y - WEDGE_EDGE_MM
     return Layout(
         t_mm=t, axle_d_mm=d, axle_height_mm=H,
         tray_half_x_mm=W / 2 + b, tray_half_y_mm=Hp / 2 + b,
@@ -166,7 +200,11 @@ def compute_layout(spec, centre_distance_mm: float) -> Layout:
         shaft_end_x_mm=shaft_end,
         pinion_y_mm=pinion_y, pinion_z_mm=pinion_z, centre_distance_mm=centre_distance_mm,
         base_x0_mm=base_x0, base_x1_mm=base_x1, base_half_y_mm=base_half_y,
-        axle_x0_mm=-(support_x + 2 * t), axle_x1_mm=wheel_x + layers * t,
+        axle_x0_mm=stop_x, axle_x1_mm=wheel_x + layers * t,
+        stop_x_mm=stop_x, stop_angle_deg=stop.angle_deg, stop_half_angle_deg=stop.half_angle_deg,
+        stop_hub_r_mm=stop.hub_r_mm, stop_arm_r_mm=stop.arm_r_mm, stop_cut_r_mm=stop.cut_r_mm,
+        stop_gap_mm=STOP_GAP_MM, stop_half_y_mm=stop.half_y_mm, stop_top_z_mm=stop.top_z_mm,
+        tilt_deg=tilt, wedge_foot_mm=max(2 * t, 8.0) if tilt > 0 else 0.0, wedge_y_mm=wedge_y,
     )
 
 
@@ -180,3 +218,102 @@ def motor_floor_height_mm(spec, centre_distance_mm: float) -> float:
     drive.pinion_angle from straight down."""
     pinion_z = -centre_distance_mm * math.cos(math.radians(spec.drive.pinion_angle_deg))
     return -(pinion_z - spec.motor.body_height_mm / 2 - MOTOR_BODY_MARGIN_MM) + MOTOR_BASE_GAP_MM
+
+
+# ---------------------------------------------------------------------------
+# end stops
+
+STOP_GAP_MM = 2.0  # the arm's gap to the end stop away from the contact faces (our rule)
+STOP_HALF_ANGLE_DEG = 15.0  # the arm's lug spans 30 deg, its edges radial (our rule)
+STOP_BASE_END_MM = 14.0  # base material beyond the end stop's slots, clear of the anchor holes
+STOP_BASE_EDGE_MM = 5.0  # base material beside the end stop's foot
+
+
+def stop_material_mm(t_mm: float) -> float:
+    """Sheet material left round the end stop's cut-out and the contact face (our rule)."""
+    return max(2.0 * t_mm, 6.0)
+
+
+def stop_min_contact_mm(t_mm: float) -> float:
+    """Shortest contact line the stop rule accepts (our rule)."""
+    return max(2.0 * t_mm, 6.0)
+
+
+@dataclass(frozen=True)
+class StopGeometry:
+    angle_deg: float
+    half_angle_deg: float
+    hub_r_mm: float
+    cut_r_mm: float
+    arm_r_mm: float
+    half_y_mm: float
+    top_z_mm: float
+    need_base_half_y_mm: float
+
+
+def stop_hub_r_mm(spec) -> float:
+    """The stop arm's hub round the axle, as the ribs' (sheetgen/design/parts/frame.py)."""
+    t, d = spec.sheet.thickness_mm, spec.axle.diameter_mm
+    return d / 2 + max(2.5 * t, 0.75 * d, 5.0)
+
+
+def stop_cut_r_mm(spec) -> float:
+    """Radius of the end stop's cut-out round the axle: clear of the arm's hub and the collar."""
+    t, d = spec.sheet.thickness_mm, spec.axle.diameter_mm
+    collar_r = d / 2 + max(4.0, 1.5 * t)
+    return max(stop_hub_r_mm(spec), collar_r) + STOP_GAP_MM
+
+
+def _stop_reach_below_mm(spec) -> float:
+    """What the arm must keep below it: the end stop's bottom bar (with its gap), and
+    frame.clearance to the base (the arm turns with the frame)."""
+    return max(STOP_GAP_MM + stop_material_mm(spec.sheet.thickness_mm), spec.frame.clearance_mm)
+
+
+def stop_floor_height_mm(spec) -> float:
+    """Least axle height that leaves the stop arm its shortest contact line."""
+    return stop_cut_r_mm(spec) + stop_min_contact_mm(spec.sheet.thickness_mm) + _stop_reach_below_mm(spec)
+
+
+def stop_geometry(spec, height_mm: float, base_half_y_mm: float) -> StopGeometry:
+    """The stop arm and the end stop, seen along the axle (+x), the arm's lug pointing down at rest.
+
+    The lug's edges are radial at +-STOP_HALF_ANGLE_DEG from straight down; the end stop's faces
+    are radial at +-(site.travel_limit + STOP_HALF_ANGLE_DEG), so an edge lies on its face exactly
+    at +-site.travel_limit, along the line from the cut-out radius to the arm's reach. The arm
+    reaches as far as the base allows (frame.clearance and the end stop's bottom bar below it, the
+    end stop's width within the base); the base is widened only when the shortest contact line
+    would not fit it."""
+    t = spec.sheet.thickness_mm
+    limit = spec.site.travel_limit_deg
+    phi = STOP_HALF_ANGLE_DEG
+    beta = math.radians(limit + phi)
+    s_beta = math.sin(beta) if limit + phi < 90.0 else 1.0
+    m = stop_material_mm(t)
+    cut_r = stop_cut_r_mm(spec)
+    lowest = cut_r + stop_min_contact_mm(t)
+    by_height = height_mm - _stop_reach_below_mm(spec)
+    if by_height < lowest - 1e-9:
+        raise ParameterError(
+            f"axle.height = {height_mm:g}: leaves no room for the end stops below the axle; must be at least "
+            f"{math.ceil(stop_floor_height_mm(spec) * 10) / 10:g} mm (or leave it at \"auto\")")
+    by_width = (base_half_y_mm - STOP_BASE_EDGE_MM - m) / s_beta - STOP_GAP_MM
+    arm_r = min(by_height, max(by_width, lowest))
+    half_y = (arm_r + STOP_GAP_MM) * s_beta + m
+    if limit + phi < 90.0:
+        top_z = m
+    else:
+        top_z = (arm_r + STOP_GAP_MM) * abs(math.cos(beta)) + m
+    return StopGeometry(limit, phi, stop_hub_r_mm(spec), cut_r, arm_r, half_y, top_z,
+                        half_y + STOP_BASE_EDGE_MM)
+
+
+# ---------------------------------------------------------------------------
+# polar axle
+
+WEDGE_EDGE_MM = 4.0  # base material outside the wedge plates
+
+
+def axle_tilt_deg(spec) -> float:
+    """The axle's angle to the ground: the latitude (either hemisphere) for a polar axle, else 0."""
+    return abs(spec.site.latitude_deg) if spec.site.axle == "polar" else 0.0

@@ -14,6 +14,7 @@ from sheetgen.mechanics.pulse import AxleLoad
 from sheetgen.mechanics.tracking import YearTracking
 from sheetgen.mechanics.massprops import Counterweight, MassProperties
 from sheetgen.mechanics.load_geometry import WindPlate
+from sheetgen.mechanics.stops import StopFigures
 
 
 CAUTIONS = (
@@ -63,6 +64,7 @@ class BalanceReport:
     notes: tuple[str, ...] = field(default=())
     pulse_capacitance_uF: float = 0.0
     pulse_voltage_V: float = 0.0
+    stops: StopFigures | None = None  # the end stops at the stall (None: a kit without them)
 
     @property
     def ok(self) -> bool:
@@ -211,6 +213,15 @@ class BalanceReport:
                 "overturning_Nm": sig(self.tipping.overturning_Nm),
                 "restoring_Nm": sig(self.tipping.restoring_Nm),
                 "worst_rotation_deg": sig(self.tipping.worst_rotation_deg),
+            },
+            "stops": None if self.stops is None else {
+                "angle_deg": sig(self.stops.angle_deg),
+                "axle_torque_Nm": sig(self.stops.axle_torque_Nm),
+                "radius_mm": sig(self.stops.radius_mm),
+                "contact_length_mm": sig(self.stops.contact_length_mm),
+                "force_N": sig(self.stops.force_N),
+                "bearing_stress_MPa": sig(self.stops.bearing_stress_MPa),
+                "bearing_allowable_MPa": sig(self.stops.allowable_MPa),
             },
             "parts": [
                 {"name": g.name, "kind": g.kind, "qty": g.qty, "mass_each_kg": sig(g.mass_each_kg),

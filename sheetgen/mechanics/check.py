@@ -16,6 +16,8 @@ from __future__ import annotations
 
 import math
 
+import numpy as np
+
 from sheetgen.errors import ParameterError
 from sheetgen.mechanics.teeth import LEWIS_Y_TABLE
 from sheetgen.mechanics import loads, tracking
@@ -26,8 +28,9 @@ from sheetgen.mechanics.massprops import suggest_counterweight
 from sheetgen.mechanics.materials import sheet_material
 from sheetgen.design.part import Kit
 from sheetgen.mechanics.balance_report import BalanceReport, Check
-from sheetgen.mechanics.load_geometry import ground_and_footprint
+from sheetgen.mechanics.load_geometry import ground_contact, to_ground_frame
 from sheetgen.mechanics.load_torque import axle_load
+from sheetgen.mechanics.stops import STOP_BEARING_SAFETY, StopFigures, stop_figures
 
 
 def balance_check(kit: Kit, spec) -> BalanceReport:
@@ -63,8 +66,10 @@ def balance_check(kit: Kit, spec) -> BalanceReport:
                                 drive.wheel_teeth, face, mat.bending_strength_MPa, chk.tooth_safety,
                                 motor.stall_torque_Nm)
 
-    # tipping: wind from either side across the axle; the base's lee edge
-    ground_z, y_lo, y_hi = ground_and_footprint(kit)
+    # tipping: wind from either side across the axle; the lee edge of what the kit stands on,
+    # in the ground frame (a polar kit's wedge tilts the kit: sheetgen.mechanics.load_geometry)
+    ground = ground_contact(kit)
+    ground_z, y_lo, y_hi = ground.ground_z_mm, ground.y_lo_mm, ground.y_hi_mm
     cp_radius = math.hypot(wind.centroid_y_mm, wind.centroid_z_mm) + loads.CP_SHIFT_CHORDS * wind.chord_mm
     height = -ground_z + cp_radius
     base_mid = 0.5 * (y_lo + y_hi)
@@ -77,10 +82,30 @@ def balance_check(kit: Kit, spec) -> BalanceReport:
             uplift_lever_mm=abs(edge) + cp_radius,
             ballast_lever_mm=abs(edge - base_mid),
             safety=chk.tipping_safety, range_deg=tr.range_deg))
+    if ground.tilt_deg > 0:
+        # the panel faces up the tilt: the wind also pushes along the ground, over the ground plate's ends
+        cg_x = float(to_ground_frame(np.asarray(mp.total_cg_mm, dtype=float), ground.tilt_deg)[0])
+        x_mid = 0.5 * (ground.x_lo_mm + ground.x_hi_mm)
+        for edge, sign in ((ground.x_hi_mm, 1.0), (ground.x_lo_mm, -1.0)):
+            tips.append(loads.tipping_along_axle_figures(
+                wind.force_N, height, ground.tilt_deg, mp.total_mass_kg,
+                cg_lever_mm=max(0.0, sign * (edge - cg_x)),
+                uplift_lever_mm=abs(edge) + cp_radius,
+                ballast_lever_mm=abs(edge - x_mid), safety=chk.tipping_safety))
+        if not ground.x_lo_mm <= cg_x <= ground.x_hi_mm:
+            notes.append(f"the kit's centre of mass ({cg_x:.0f} mm along the ground) is outside its ground plate "
+                         f"({ground.x_lo_mm:.0f} to {ground.x_hi_mm:.0f} mm): it tips over without wind; screw it down")
     tipping = max(tips, key=lambda t: t.ballast_kg)
-    if tilt > 0:
+    if tilt > 0 and ground.tilt_deg <= 0:
         notes.append("tipping is figured for the base standing level; a polar kit's inclined mount "
                      "needs its own anchoring")
+
+    stops = None
+    figures = dict(kit.figures)
+    if figures.get("stop_contact_mm", 0.0) > 0:
+        stops = stop_figures(motor.stall_torque_Nm, df.gear_ratio, load, figures["stop_radius_mm"],
+                             figures["stop_contact_mm"], spec.sheet.thickness_mm, mat.bearing_strength_MPa,
+                             figures["stop_angle_deg"])
 
     cw = suggest_counterweight(kit, mp, (-site.travel_limit_deg, site.travel_limit_deg), spec.frame.clearance_mm)
 
@@ -111,7 +136,7 @@ def balance_check(kit: Kit, spec) -> BalanceReport:
                  f"(straight motor line); frame inertia {inertia * 1e6:.0f} kg·mm² about the axle; the gear-motor's "
                  "own rotor inertia is not known and left out")
     notes.extend(year.warnings)
-    checks = _checks(spec, mp, tr, g_max, load, df, dtm, year, tooth, tipping, cw, mat.name)
+    checks = _checks(spec, mp, tr, g_max, load, df, dtm, year, tooth, tipping, cw, mat.name, stops)
     if tr.clipped:
         notes.append(f"the sun's path needs +-{tr.sunset_rotation_deg:.1f} deg; site.travel_limit = "
                      f"{tr.travel_limit_deg:g} deg follows it for {tr.tracked_hours_h:.1f} of "
@@ -124,10 +149,12 @@ def balance_check(kit: Kit, spec) -> BalanceReport:
         wind_load=wind_load, tooth=tooth, tipping=tipping,
         counterweight=cw, checks=tuple(checks), material=spec.sheet.material, notes=tuple(notes),
         pulse_capacitance_uF=drive.pulse_capacitance_uF, pulse_voltage_V=drive.pulse_voltage_V,
+        stops=stops,
     )
 
 
-def _checks(spec, mp, tr, g_max, load, df, dtm, year, tooth, tipping, cw, material_name) -> list[Check]:
+def _checks(spec, mp, tr, g_max, load, df, dtm, year, tooth, tipping, cw, material_name,
+            stops: StopFigures | None = None) -> list[Check]:
     out = []
     share = g_max / load if load > 0 else 0.0
     fix = ("raise the gear ratio (drive.wheel_teeth / drive.pinion_teeth), use a stronger motor"
@@ -172,17 +199,33 @@ def _checks(spec, mp, tr, g_max, load, df, dtm, year, tooth, tipping, cw, materi
                or sw.runs_to_end and not ok else "")
             + f"); drive.max_step = {dtm.max_step_deg:g} deg" + ("" if ok else fix_text)))
     ok = tooth.stall_stress_MPa <= tooth.allowable_MPa
-    out.append(Check(
-        "teeth at motor stall", ok, tooth.stall_stress_MPa, tooth.allowable_MPa, "MPa",
-        f"if the frame jams, the stalled motor loads the pinion to {tooth.stall_stress_MPa:.3g} MPa"
-        + ("" if ok else "; stop the motor at the travel ends (limit switches), do not let it stall there"),
-        binding=False))
+    if stops is not None:
+        out.append(Check(
+            "teeth at motor stall", ok, tooth.stall_stress_MPa, tooth.allowable_MPa, "MPa",
+            f"at the end stops (+-{stops.angle_deg:g} deg) the stalled motor loads the pinion to "
+            f"{tooth.stall_stress_MPa:.3g} MPa (Lewis, stall torque at the pinion's pitch circle) vs "
+            f"{tooth.allowable_MPa:.3g} MPa" + ("" if ok else "; add drive.layers or a larger drive.module")))
+        ok = stops.bearing_stress_MPa <= stops.allowable_MPa
+        out.append(Check(
+            "end stop bearing", ok, stops.bearing_stress_MPa, stops.allowable_MPa, "MPa",
+            f"stall torque through the ratio plus the load, {stops.axle_torque_Nm:.3g} N·m at the axle, is "
+            f"{stops.force_N:.3g} N on the stop at {stops.radius_mm:.3g} mm; over {stops.contact_length_mm:.3g} x "
+            f"{stops.thickness_mm:g} mm of sheet edge {stops.bearing_stress_MPa:.3g} MPa vs {stops.allowable_MPa:.3g} "
+            f"MPa ({material_name} in-plane compressive strength / {STOP_BEARING_SAFETY:g})"
+            + ("" if ok else "; a longer stop arm (a higher axle) or a thicker sheet")))
+    else:
+        out.append(Check(
+            "teeth at motor stall", ok, tooth.stall_stress_MPa, tooth.allowable_MPa, "MPa",
+            f"if the frame jams, the stalled motor loads the pinion to {tooth.stall_stress_MPa:.3g} MPa"
+            + ("" if ok else "; stop the motor at the travel ends (limit switches), do not let it stall there"),
+            binding=False))
     ok = tipping.ballast_kg <= 0.0
     out.append(Check(
         "stands in the design wind", ok, tipping.overturning_Nm, tipping.restoring_Nm, "N·m",
         (f"wind moment x check.tipping_safety {tipping.overturning_Nm:.3g} N·m vs the kit's weight "
          f"{tipping.restoring_Nm:.3g} N·m")
-        + ("" if ok else f"; screw the base down or add {tipping.ballast_kg:.2f} kg ballast at its middle"),
+        + ("" if ok else f"; screw the {'ground plate' if tr.axle_tilt_deg > 0 else 'base'} down "
+           f"or add {tipping.ballast_kg:.2f} kg ballast at its middle"),
         binding=False))
     return out
 

@@ -89,9 +89,44 @@ def wind_plate(kit: Kit, spec) -> WindPlate:
     return WindPlate(area_m2, chord, cy, cz, ecc, force, force * ecc * 1e-3)
 
 
+def kit_tilt_deg(kit: Kit) -> float:
+    """The axle's angle to the ground the kit stands on (0 unless a wedge tilts it)."""
+    return float(dict(kit.figures).get("axle_tilt_deg", 0.0))
+
+
+def to_ground_frame(points_mm: np.ndarray, tilt_deg: float) -> np.ndarray:
+    """Kit-frame points in the ground frame: the kit turned about y by -tilt_deg, so that a
+    polar kit's ground plate lies level (z up) and the axle rises at tilt_deg toward +x.
+    y is unchanged (the wind across the axle blows along it)."""
+    a = np.radians(tilt_deg)
+    c, s = np.cos(a), np.sin(a)
+    r = np.array([[c, 0.0, -s], [0.0, 1.0, 0.0], [s, 0.0, c]])
+    return np.asarray(points_mm, dtype=float) @ r.T
+
+
 def ground_and_footprint(kit: Kit) -> tuple[float, float, float]:
-    """Lowest z of the fixed parts (the ground), and the y extent of the
-    fixed material touching it (the base's edges across the axle)."""
+    """Lowest z of the fixed parts in the ground frame (the ground: the base, or
+    the ground plate under a polar kit's wedge), and the y extent of the fixed
+    material touching it (its edges across the axle)."""
+    g = ground_contact(kit)
+    return g.ground_z_mm, g.y_lo_mm, g.y_hi_mm
+
+
+@dataclass(frozen=True)
+class GroundContact:
+    """Where the kit stands, in the ground frame (see :func:`to_ground_frame`)."""
+
+    ground_z_mm: float  # the ground's height (the axle's middle at 0)
+    x_lo_mm: float  # extent of the fixed material on the ground, along the ground's x ...
+    x_hi_mm: float
+    y_lo_mm: float  # ... and across the axle
+    y_hi_mm: float
+    tilt_deg: float
+
+
+def ground_contact(kit: Kit) -> GroundContact:
+    """The fixed parts' lowest face in the ground frame and its extent."""
+    tilt = kit_tilt_deg(kit)
     pts = []
     for part in kit.parts:
         ext = np.asarray(part.outline.exterior.coords, dtype=float)[:, :2]
@@ -101,8 +136,9 @@ def ground_and_footprint(kit: Kit) -> tuple[float, float, float]:
             for z in (0.0, part.thickness_mm):
                 pts.append(pl.apply(np.column_stack([ext, np.full(len(ext), z)])))
     if not pts:
-        return 0.0, 0.0, 0.0
-    allp = np.vstack(pts)
+        return GroundContact(0.0, 0.0, 0.0, 0.0, 0.0, tilt)
+    allp = to_ground_frame(np.vstack(pts), tilt)
     ground = float(allp[:, 2].min())
     low = allp[np.abs(allp[:, 2] - ground) < 1e-6]
-    return ground, float(low[:, 1].min()), float(low[:, 1].max())
+    return GroundContact(ground, float(low[:, 0].min()), float(low[:, 0].max()),
+                         float(low[:, 1].min()), float(low[:, 1].max()), tilt)

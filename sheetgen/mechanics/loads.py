@@ -240,3 +240,26 @@ def tipping_figures(wind_force_N: float, force_height_mm: float, kit_mass_kg: fl
         ballast = math.inf
     return TippingFigures(wind_force_N, force_height_mm, cg_lever_mm, uplift_lever_mm, ballast_lever_mm,
                           overturning, restoring, ballast, float(best_t))
+
+
+def tipping_along_axle_figures(wind_force_N: float, force_height_mm: float, tilt_deg: float, kit_mass_kg: float,
+                               cg_lever_mm: float, uplift_lever_mm: float, ballast_lever_mm: float,
+                               safety: float) -> TippingFigures:
+    """A polar kit tipping over an end of its ground plate. Its panel faces up the axle's tilt:
+    the wind force F square to the panel, at frame rotation theta, has the part
+    F cos(theta) sin(tilt) along the ground toward the ends (at the pressure centre's height h)
+    and F cos(theta) cos(tilt) taken as lift (at the lever u from the lee end); both peak at
+    theta = 0. So m_kit g a + m_ballast g c >= S F (sin(tilt) h + cos(tilt) u)."""
+    a = math.radians(tilt_deg)
+    arm_mm = math.sin(a) * force_height_mm + math.cos(a) * uplift_lever_mm
+    overturning = safety * wind_force_N * arm_mm * 1e-3
+    restoring = kit_mass_kg * G_M_S2 * cg_lever_mm * 1e-3
+    short = overturning - restoring
+    if short <= 0:
+        ballast = 0.0
+    elif ballast_lever_mm > 0:
+        ballast = short / (G_M_S2 * ballast_lever_mm * 1e-3)
+    else:
+        ballast = math.inf
+    return TippingFigures(wind_force_N, force_height_mm, cg_lever_mm, uplift_lever_mm, ballast_lever_mm,
+                          overturning, restoring, ballast, 0.0)

@@ -32,6 +32,9 @@ class SheetMaterial:
     bending_strength_MPa: float  # modulus of rupture used for the tooth check
     bending_strength_source: str
     note: str = ""
+    # edge bearing: compressive strength in the sheet's plane, for a stop pressing on the cut edge
+    bearing_strength_MPa: float = 0.0
+    bearing_strength_source: str = ""
 
 
 @dataclass(frozen=True)
@@ -56,6 +59,10 @@ SHEET_MATERIALS: dict[str, SheetMaterial] = {
             "EN 622-5:2009, general-purpose MDF up to 9 mm: bending strength at least 23 N/mm2 "
             "(a board acceptance minimum, not a design value)"),
         note="Laser-cut MDF gives off formaldehyde-laden smoke: cut only with extraction.",
+        bearing_strength_MPa=12.0,
+        bearing_strength_source=(
+            "from memory: compressive strength of MDF in the plane of the board, taken low (about 12 N/mm2; "
+            "the core is less dense than the faces); verify with the board maker's data sheet"),
     ),
     "birch_plywood": SheetMaterial(
         key="birch_plywood",
@@ -68,6 +75,10 @@ SHEET_MATERIALS: dict[str, SheetMaterial] = {
             "from memory: in-plane bending strength of thin 3-ply birch across its weaker direction, "
             "taken low (about a third of clear birch's modulus of rupture); verify with the supplier's data sheet"),
         note="Glue lines vary between suppliers; laser-grade boards cut cleaner.",
+        bearing_strength_MPa=20.0,
+        bearing_strength_source=(
+            "from memory: compressive strength of thin birch plywood in its plane, across its weaker direction, "
+            "taken low (about half of clear birch's compression parallel to the grain); verify with the supplier"),
     ),
     "cast_acrylic": SheetMaterial(
         key="cast_acrylic",
@@ -80,6 +91,10 @@ SHEET_MATERIALS: dict[str, SheetMaterial] = {
             "manufacturers' data sheets for cast PMMA, flexural strength to ISO 178: about 110 MPa (from memory); "
             "acrylic is notch-sensitive and laser-cut edges carry residual stress"),
         note="Acrylic burns: never leave the laser unattended.",
+        bearing_strength_MPa=100.0,
+        bearing_strength_source=(
+            "manufacturers' data sheets for cast PMMA, compressive strength to ISO 604: about 100 to 120 MPa "
+            "(from memory; the lower end taken)"),
     ),
 }
 

@@ -213,6 +213,10 @@ def check_model(model: Model, kit: Kit, spec, step_deg: float = SWEEP_STEP_DEG) 
     lap("mesh")
     mass, infos = _mass(kit, model)
     lap("mass")
+    from sheetgen.model3d.stops import check_stops
+
+    stops = check_stops(model, spec, meas)
+    lap("stops")
     timing.insert(0, ("build", model.build_s))
     return AssemblyReport(
         solids=tuple(infos), interference=tuple(interference), floating_parts=tuple(floating),
@@ -221,6 +225,7 @@ def check_model(model: Model, kit: Kit, spec, step_deg: float = SWEEP_STEP_DEG) 
         running=tuple(running), closest=tuple(closest), frame_clearance=frame,
         frame_clearance_required_mm=spec.frame.clearance_mm, collisions=tuple(collisions),
         touching=tuple(touching), mesh=tuple(mesh), mass=mass, timing_s=tuple(timing), occ_calls=meas.occ_calls,
+        stops=tuple(stops),
     )
 
 

@@ -99,6 +99,23 @@ class SolidInfo:
 
 
 @dataclass(frozen=True)
+class StopCheck:
+    """A turning stop against its fixed stop (sheetgen.design.kit.STOPS), measured on the solids."""
+
+    turning: str
+    fixed: str
+    limit_deg: float  # site.travel_limit: where they must meet
+    meet_plus_deg: float  # the first angle, turning +, where they touch (bisection on the solids)
+    meet_minus_deg: float  # ... turning -
+    inside_min_mm: float  # least gap at the sampled angles inside the travel (|angle| <= limit - inside_deg)
+    inside_deg: float
+    past_deg: float  # turned this far past the limit ...
+    past_plus_mm3: float  # ... the stops share this volume (turning +)
+    past_minus_mm3: float
+    ok: bool
+
+
+@dataclass(frozen=True)
 class AssemblyReport:
     solids: tuple[SolidInfo, ...]
     interference: tuple[Interference, ...]
@@ -118,6 +135,7 @@ class AssemblyReport:
     mass: MassCheck
     timing_s: tuple[tuple[str, float], ...] = field(default=())
     occ_calls: int = 0  # OpenCascade booleans and distances the checks needed
+    stops: tuple[StopCheck, ...] = ()  # the end stops meet at the travel limit (sheetgen.model3d.stops)
 
     @property
     def running_parts(self) -> tuple[str, ...]:
@@ -156,7 +174,11 @@ class AssemblyReport:
     def ok(self) -> bool:
         return (not self.interference and not self.floating_parts and not self.detached_parts and self.tabs_ok
                 and not self.collisions and not self.touching and self.min_clearance_mm > 0
-                and self.frame_clearance_ok and self.mesh_ok and self.mass.ok)
+                and self.frame_clearance_ok and self.mesh_ok and self.mass.ok and self.stops_ok)
+
+    @property
+    def stops_ok(self) -> bool:
+        return all(s.ok for s in self.stops)
 
     def to_json(self) -> dict:
         m = self.mass
@@ -206,6 +228,12 @@ class AssemblyReport:
             "kit_cg_mm": [sig(v) for v in m.kit_cg_mm],
             "timing_s": {k: round(v, 3) for k, v in self.timing_s},
             "occ_calls": self.occ_calls,
+            "stops_ok": self.stops_ok,
+            "stops": [{"turning": c.turning, "fixed": c.fixed, "limit_deg": sig(c.limit_deg),
+                       "meet_plus_deg": sig(c.meet_plus_deg), "meet_minus_deg": sig(c.meet_minus_deg),
+                       "inside_min_mm": sig(c.inside_min_mm), "inside_deg": sig(c.inside_deg),
+                       "past_deg": sig(c.past_deg), "past_plus_mm3": sig(c.past_plus_mm3),
+                       "past_minus_mm3": sig(c.past_minus_mm3), "ok": c.ok} for c in self.stops],
         }
 
 

@@ -95,11 +95,36 @@ def build_model(kit: Kit, spec) -> Model:
     return Model(bodies, solids, pieces, time.perf_counter() - start)
 
 
+GROUND_PLATE = "ground-plate"  # the part a polar kit's wedge stands on (sheetgen/design/parts/wedge.py)
+
+
+def ground_tilt_deg(model: Model) -> float:
+    """The angle by which the kit frame is turned about y against the ground: 0 unless
+    the model has a ground plate (a polar kit's wedge), whose face normal is then up."""
+    for b in model.bodies:
+        if b.source == GROUND_PLATE:
+            n = b.pieces[0].placement.matrix[:, 2]
+            return math.degrees(math.atan2(float(n[0]), float(n[2])))
+    return 0.0
+
+
+def _ground_location(tilt_deg: float):
+    import cadquery as cq
+    from OCP.gp import gp_Ax1, gp_Dir, gp_Pnt, gp_Trsf
+
+    trsf = gp_Trsf()
+    trsf.SetRotation(gp_Ax1(gp_Pnt(0, 0, 0), gp_Dir(0, 1, 0)), -math.radians(tilt_deg))
+    return cq.Location(trsf)
+
+
 def build_assembly(model: Model, name: str = "kit"):
-    """A cadquery Assembly: ``fixed`` and ``rotating`` groups, one named child per solid."""
+    """A cadquery Assembly: ``fixed`` and ``rotating`` groups, one named child per solid.
+    A polar kit is stood on its ground plate (the kit turned about y so the plate lies
+    level), so the file shows the axle at its tilt."""
     import cadquery as cq
 
-    top = cq.Assembly(name=name)
+    tilt = ground_tilt_deg(model)
+    top = cq.Assembly(name=name) if tilt == 0 else cq.Assembly(name=name, loc=_ground_location(tilt))
     groups = {g: cq.Assembly(name=g) for g in ("fixed", "rotating")}
     for b in model.bodies:
         groups["rotating" if b.rotating else "fixed"].add(model.solids[b.name], name=b.name)
@@ -135,8 +160,12 @@ def _occ_distance(shape_a, shape_b) -> float:
     return float(ext.Value())
 
 
+OCC_FUZZY_MM = 1e-6  # booleans treat faces this close as one: a polar kit's tilted plates meet in faces
+# that agree only to rounding, and a plain boolean then drops pieces of the common volume
+
+
 def _occ_common_mm3(solid_a, solid_b) -> float:
-    return float(solid_a.intersect(solid_b).Volume())
+    return float(solid_a.intersect(solid_b, tol=OCC_FUZZY_MM).Volume())
 
 
 def _volume_and_centre(solid) -> tuple[float, np.ndarray]:

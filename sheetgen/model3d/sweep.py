@@ -11,7 +11,7 @@ import numpy as np
 import shapely
 from shapely import affinity
 
-from sheetgen.design.kit import MESHING
+from sheetgen.design.kit import MESHING, STOPS
 from sheetgen.model3d.bodies import CLOSEST_PAIRS, CONTACT_TOL_MM, SHARED_VOLUME_TOL_MM3, _x_gap, _x_overlap, turns_in_place
 from sheetgen.model3d.measures import _Measures, distance_bound_mm
 from sheetgen.model3d.records import Clearance, Collision, Touch
@@ -72,7 +72,7 @@ def _sweep(model: Model, meas: _Measures, angles: np.ndarray):
     running = [i for i, b in enumerate(bodies) if turns_in_place(b)]
     turning = [i for i, b in enumerate(bodies) if b.rotating and i not in running]
     fixed = [i for i, b in enumerate(bodies) if not b.rotating]
-    tab = _sweep_tables(bodies, turning, fixed, angles, MESHING)
+    tab = _sweep_tables(bodies, turning, fixed, angles, MESHING | STOPS)  # the stops: model3d.stops
     npairs = len(tab.pairs)
     dist = np.full(tab.lb.shape, np.nan)  # exact distances computed so far (0 where colliding)
     volume = np.zeros(tab.lb.shape)

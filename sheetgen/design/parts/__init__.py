@@ -60,7 +60,7 @@ class Blank:
 
 def part_families():
     """The registered factories, in the order parts are listed."""
-    from sheetgen.design.parts import axle_hardware, drive, frame, stand
+    from sheetgen.design.parts import axle_hardware, drive, frame, stand, stops, wedge
 
     return (
         stand.base,
@@ -75,4 +75,8 @@ def part_families():
         axle_hardware.spacer,
         drive.wheel,
         drive.pinion,
+        stops.stop_arm,
+        stops.end_stop,
+        wedge.wedge,  # polar axle only (None otherwise)
+        wedge.ground_plate,  # polar axle only (None otherwise)
     )

@@ -39,9 +39,10 @@ def _centre_distance_mm(spec) -> float:
 
 
 def _height_floor_mm(spec) -> float:
-    from sheetgen.design.layout import motor_floor_height_mm
+    from sheetgen.design.layout import motor_floor_height_mm, stop_floor_height_mm
 
-    return max(key_lo("axle.height"), motor_floor_height_mm(spec, _centre_distance_mm(spec)))
+    return max(key_lo("axle.height"), motor_floor_height_mm(spec, _centre_distance_mm(spec)),
+               stop_floor_height_mm(spec))
 
 
 def _build(spec, height_mm: float):
@@ -115,10 +116,12 @@ def _teeth_carry_load(st: State) -> dict:
         for n in layer_counts:
             fig = loads.tooth_figures(load, motor_Nm, m, d.pinion_teeth, d.wheel_teeth, n * t, strength,
                                       s.check.tooth_safety, s.motor.stall_torque_Nm)
-            if fig.stress_MPa <= fig.allowable_MPa:
+            # the end stops stall the motor at the travel ends: the teeth carry the stall too
+            worst = max(fig.stress_MPa, fig.stall_stress_MPa)
+            if worst <= fig.allowable_MPa:
                 return {"drive.module": m, "drive.layers": n}
-            if m <= 2 * max(m0, min(modules)) and (best is None or fig.stress_MPa < best[0]):
-                best = (fig.stress_MPa, m, n)
+            if m <= 2 * max(m0, min(modules)) and (best is None or worst < best[0]):
+                best = (worst, m, n)
     if best is None:  # the wheel's cap leaves no module of the series
         raise NoLayout(f"drive.module: no module of the ISO 54 series from {MIN_MODULE_MM:g} mm is left under "
                        f"the limit the wheel sets ({st.module_cap_mm} mm)", "module")
@@ -318,8 +321,9 @@ RULES: tuple[Rule, ...] = (
          f"{BORDER_BOLT_MATERIAL_MM:g} mm each side, and sheet.thickness + 3 mm less the ledge", _border),
     Rule("teeth_carry_load", ("drive.module", "drive.layers"),
          "the smallest ISO 54 module from max(1 mm, half the sheet) (the largest finer one, down to 1 mm, when "
-         "the motor needs a ratio the wheel cannot reach) and the fewest layers whose Lewis tooth stress under the load stays "
-         "within the tooth check's allowable", _teeth_carry_load),
+         "the motor needs a ratio the wheel cannot reach) and the fewest layers whose Lewis tooth stress under the "
+         "load, and under the motor stalled at the end stops, stays within the tooth check's allowable",
+         _teeth_carry_load),
     Rule("pinion_fits_shaft", ("drive.pinion_teeth",),
          f"the fewest teeth (from {MIN_PINION_TEETH}) whose root circle leaves the gear web round the motor shaft",
          _pinion_fits_shaft),
@@ -333,7 +337,8 @@ RULES: tuple[Rule, ...] = (
          "at least 1 mm from the support", _motor_shaft_reach),
     Rule("axle_clears_travel", ("axle.height",),
          f"the lowest height, on a {HEIGHT_GRID_MM:g} mm grid, keeping frame.clearance (plus at most "
-         f"{HEIGHT_SURPLUS_MM:g} mm) through the travel and the motor off the base",
+         f"{HEIGHT_SURPLUS_MM:g} mm) through the travel, the motor off the base and the stop arm its shortest "
+         "contact line",
          _axle_clears_travel),
 )
 RULE_BY_NAME = {r.name: r for r in RULES}
