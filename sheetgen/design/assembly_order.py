@@ -256,6 +256,25 @@ class _Blocking:
                         return True
         return False
 
+    def share_volume(self, a: int, b: int) -> bool:
+        """Items a and b overlap where they stand (not merely interlock, as plates joined by
+        tabs along a direction that is none of the kit's axes do)."""
+        for k in range(0, len(AXES), 2):
+            d = np.asarray(AXES[k][1])
+            e1, e2 = _basis(d)
+            for pa, sa in zip(self.items[a].pieces, self.shadows(a, k)):
+                for pb, sb in zip(self.items[b].pieces, self.shadows(b, k)):
+                    common = sa.intersection(sb)
+                    if common.area < AREA_EPS_MM2:
+                        continue
+                    for u, v in _samples(common):
+                        q = u * e1 + v * e2
+                        for lo_a, hi_a in _extent(pa, q, d):
+                            for lo_b, hi_b in _extent(pb, q, d):
+                                if min(hi_a, hi_b) - max(lo_a, lo_b) > EPS_MM:
+                                    return True
+        return False
+
     def masks(self, meshing: frozenset = frozenset()) -> list[list[int]]:
         """hits[k][a]: the items a runs into along AXES[k], as a bit mask over item indices.
         Parts of a ``meshing`` pair (gears) never stop each other: their teeth are turned
@@ -274,7 +293,7 @@ class _Blocking:
         # 3D check reports; it says nothing about the order, so the pair is left out
         for a in range(n):
             for b in range(n):
-                if all(hits[k][a] >> b & 1 for k in range(len(AXES))):
+                if all(hits[k][a] >> b & 1 for k in range(len(AXES))) and self.share_volume(a, b):
                     for k in range(len(AXES)):
                         hits[k][a] &= ~(1 << b)
                         hits[k][b] &= ~(1 << a)
