@@ -33,7 +33,7 @@ from sheetgen.production.nesting.place import RULES, Sheet, ShapeLibrary, Work
 
 KINDS_PER_WIDTH = 10     # column kinds kept per column width (the fullest)
 SHEET_NODES = 4000       # depth-first nodes per sheet
-SLACK_MM = 1e-5          # added to every grown box, far above rounding, far below any tolerance
+SLACK_UNITS = 4          # grid units added to every grown box: above the rounding of positions, far below any tolerance
 NODE_UNITS = 40          # work charged per search node
 FILLER_WEIGHTS = (1.0, 0.5, 0.25, 0.0)   # weight of the smaller parts in a column's value, per series of greedy runs
 ROUNDS = 8               # greedy runs per series (class weights corrected after each)
@@ -78,6 +78,7 @@ def column_layout(lib: ShapeLibrary, counts: list[int], usable, work: Work, budg
     one was finished, or there is nothing large. Stops early on a layout of
     ``lower`` sheets."""
     s = lib.spacing
+    slack = SLACK_UNITS / lib.scale
     x0, y0, x1, y1 = usable
     W, H = x1 - x0 + s, y1 - y0 + s
     present = [i for i, c in enumerate(counts) if c > 0]
@@ -97,8 +98,8 @@ def column_layout(lib: ShapeLibrary, counts: list[int], usable, work: Work, budg
         for sid in lib.item_shapes[items[0]]:
             sh = lib.shapes[sid]
             key = (round(sh.width, 6), round(sh.height, 6))
-            if key not in seen and sh.width + s + SLACK_MM <= W + 1e-12 and sh.height + s + SLACK_MM <= H + 1e-12:
-                w, h = sh.width + s + SLACK_MM, sh.height + s + SLACK_MM
+            if key not in seen and sh.width + s + slack <= W and sh.height + s + slack <= H:
+                w, h = sh.width + s + slack, sh.height + s + slack
                 seen[key] = Box(len(boxes), sid, w, h, w * h)
         boxes.append(list(seen.values()))
     demand = [sum(counts[i] for i in items) for items in classes]
@@ -124,7 +125,7 @@ def column_layout(lib: ShapeLibrary, counts: list[int], usable, work: Work, budg
     for key in sorted(found)[:FINISHED]:
         if best is not None and (work.units >= budget_units or stop() or len(best[1]) <= lower):
             break
-        placed = _finish(lib, classes, counts, found[key], usable, work)
+        placed = _finish(lib, classes, counts, found[key], usable, slack, work)
         if placed is None:
             continue
         final = (len(placed), sum(lib.shapes[sid].area for _i, sid, _x, _y in placed[-1]))
@@ -133,7 +134,7 @@ def column_layout(lib: ShapeLibrary, counts: list[int], usable, work: Work, budg
     return None if best is None else best[1]
 
 
-def _finish(lib: ShapeLibrary, classes, counts: list[int], layouts, usable, work: Work):
+def _finish(lib: ShapeLibrary, classes, counts: list[int], layouts, usable, slack: float, work: Work):
     """The column sheets with concrete items at grid positions, then the rest
     placed (:func:`_place_rest`); None if rounding pushed a part out."""
     x0, y0, x1, y1 = usable
@@ -148,7 +149,7 @@ def _finish(lib: ShapeLibrary, classes, counts: list[int], layouts, usable, work
         for b, x, y in pieces:
             item = pool[b.cls][used[b.cls]]
             used[b.cls] += 1
-            sid = _same_box_shape(lib, item, b)
+            sid = _same_box_shape(lib, item, b, slack)
             # the grown box starts at (x0 - s/2 + x, ...): the part's own box half the spacing further in
             px = math.ceil((x0 + x) * scale)
             py = math.ceil((y0 + y) * scale)
@@ -204,8 +205,8 @@ def _column_sheets(kinds, demand: list[int], large: list[int], fillers: list[Box
                 y += b.h
             # rows of smaller parts in the free top of the column
             for b in fillers:
-                while left[b.cls] > 0 and b.w <= kind[0] + 1e-12 and y + b.h <= H + 1e-12:
-                    across = min(left[b.cls], int((kind[0] + 1e-12) // b.w))
+                while left[b.cls] > 0 and b.w <= kind[0] and y + b.h <= H:
+                    across = min(left[b.cls], int((kind[0]) // b.w))
                     for j in range(across):
                         pieces.append((b, x + j * b.w, y))
                     left[b.cls] -= across
@@ -215,11 +216,11 @@ def _column_sheets(kinds, demand: list[int], large: list[int], fillers: list[Box
     return layouts
 
 
-def _same_box_shape(lib: ShapeLibrary, item: int, b: Box) -> int:
+def _same_box_shape(lib: ShapeLibrary, item: int, b: Box, slack: float) -> int:
     """The shape of ``item`` whose box is ``b``'s (items of a class share box sizes)."""
     for sid in lib.item_shapes[item]:
         sh = lib.shapes[sid]
-        if abs(sh.width + lib.spacing + SLACK_MM - b.w) < 1e-6 and abs(sh.height + lib.spacing + SLACK_MM - b.h) < 1e-6:
+        if abs(sh.width + lib.spacing + slack - b.w) < 1e-6 and abs(sh.height + lib.spacing + slack - b.h) < 1e-6:
             return sid
     return b.shape
 
@@ -228,8 +229,8 @@ def _top_fill(cw: float, free_h: float, fillers: list[Box]) -> float:
     """Box area of rows of smaller parts (any number of each) in a cw x free_h top of a column."""
     got = 0.0
     for b in fillers:
-        while b.w <= cw + 1e-12 and b.h <= free_h + 1e-12:
-            got += int((cw + 1e-12) // b.w) * b.area
+        while b.w <= cw and b.h <= free_h:
+            got += int((cw) // b.w) * b.area
             free_h -= b.h
     return got
 
@@ -241,7 +242,7 @@ def _column_kinds(boxes: list[list[Box]], large: list[int], fillers: list[Box], 
     kinds = []
     for lead in options:
         cw = lead.w
-        fit = sorted((b for b in options if b.w <= cw + 1e-12), key=lambda b: (-b.h, b.cls, b.shape))
+        fit = sorted((b for b in options if b.w <= cw), key=lambda b: (-b.h, b.cls, b.shape))
         found: list[tuple[float, tuple[Box, ...]]] = []
 
         def grow(start: int, stack: tuple[Box, ...], height: float) -> None:
@@ -251,7 +252,7 @@ def _column_kinds(boxes: list[list[Box]], large: list[int], fillers: list[Box], 
                 return
             for j in range(start, len(fit)):
                 b = fit[j]
-                if height + b.h <= H + 1e-12:
+                if height + b.h <= H:
                     grow(j, stack + (b,), height + b.h)
 
         grow(0, (), 0.0)
@@ -298,7 +299,7 @@ def _best_sheet(kinds, left: list[int], large: list[int], W: float, H: float, fw
             # the kinds are by density: nothing after j can beat this bound
             if value + (W - width) * H * dens[j] <= best[0] + 1e-9:
                 return
-            if width + kind[0] > W + 1e-12 or not need_ok(kind, have):
+            if width + kind[0] > W or not need_ok(kind, have):
                 continue
             for b in kind[1]:
                 have[b.cls] -= 1
