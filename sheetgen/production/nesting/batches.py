@@ -54,9 +54,11 @@ def sheet_run(lib, counts, usable, lower, work, budget, rng, clock, jobs):
         part_items = [i for i, q in enumerate(batch) for _ in range(q)]
         # a batch may use one sheet more than its share of the whole run's bound
         share_lower = 1 if not last else max(1, lower - len(sheets))
-        # column layouts of the large parts first; the order search when they miss the bound
-        # (bounded work: it may use the whole run's budget, the first batch's NFPs serving the rest)
-        got = column_layout(lib, batch, usable, work, max(stage_end, budget), share_lower, stage_clock.stop) or []
+        # column layouts of the large parts first; the order search when they miss the bound. Like a
+        # first layout, always finished (bounded work, never cut by the clock, so the same on any
+        # machine); it may use the whole run's budget, the first batch's NFPs serving the rest
+        got = column_layout(lib, batch, usable, work, max(stage_end, budget), share_lower,
+                            finished=3 if last else 1) or []
         unplaced_items: list[int] = []
         if not got or (last and len(got) > share_lower and work.units < stage_end):
             stage = Budget(work, work.units + int(max(0, stage_end - work.units) * (1 - ASSIGN_SHARE)))

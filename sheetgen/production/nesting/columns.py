@@ -31,21 +31,21 @@ from dataclasses import dataclass
 from sheetgen.production.nesting.decode import Decoder, State
 from sheetgen.production.nesting.place import RULES, Sheet, ShapeLibrary, Work
 
-KINDS_PER_WIDTH = 10     # column kinds kept per column width (the fullest)
+KINDS_PER_WIDTH = 10     # column kinds kept per leading box (the fullest)
+KIND_NODES = 5000        # search nodes per leading box
 SHEET_NODES = 4000       # depth-first nodes per sheet
-SLACK_UNITS = 4          # grid units added to every grown box: above the rounding of positions, far below any tolerance
+TOL_UNITS = 4            # grid units by which boxes may exceed the area in sums (float rounding)
 NODE_UNITS = 40          # work charged per search node
 FILLER_WEIGHTS = (1.0, 0.5, 0.25, 0.0)   # weight of the smaller parts in a column's value, per series of greedy runs
 ROUNDS = 8               # greedy runs per series (class weights corrected after each)
 SMOOTH = 0.5             # share of the new estimate in a corrected weight
-FINISHED = 3             # column layouts (the best) finished with the smaller parts
 
 
 @dataclass(frozen=True)
 class Box:
     cls: int            # class of interchangeable items
     shape: int          # shape id giving this box
-    w: float            # grown width (spacing and slack included)
+    w: float            # grown width (spacing included)
     h: float
     area: float
 
@@ -72,15 +72,16 @@ def _windows(lib: ShapeLibrary, items: list[int]) -> list[tuple[float, float]]:
 
 
 def column_layout(lib: ShapeLibrary, counts: list[int], usable, work: Work, budget_units: int, lower: int = 1,
-                  stop: Callable[[], bool] = lambda: False):
+                  stop: Callable[[], bool] = lambda: False, finished: int = 3):
     """Sheets as lists of (item, shape id, px, py) for ``counts`` copies of
     each item, or None when the budget ran out (or ``stop()`` said so) before
     one was finished, or there is nothing large. Stops early on a layout of
-    ``lower`` sheets."""
+    ``lower`` sheets; ``finished`` column layouts (the best) are completed
+    with the smaller parts and the best kept."""
     s = lib.spacing
-    slack = SLACK_UNITS / lib.scale
     x0, y0, x1, y1 = usable
-    W, H = x1 - x0 + s, y1 - y0 + s
+    tol = TOL_UNITS / lib.scale
+    W, H = x1 - x0 + s + tol, y1 - y0 + s + tol
     present = [i for i, c in enumerate(counts) if c > 0]
     windows = _windows(lib, present)
 
@@ -98,15 +99,15 @@ def column_layout(lib: ShapeLibrary, counts: list[int], usable, work: Work, budg
         for sid in lib.item_shapes[items[0]]:
             sh = lib.shapes[sid]
             key = (round(sh.width, 6), round(sh.height, 6))
-            if key not in seen and sh.width + s + slack <= W and sh.height + s + slack <= H:
-                w, h = sh.width + s + slack, sh.height + s + slack
+            if key not in seen and sh.width + s <= W and sh.height + s <= H:
+                w, h = sh.width + s, sh.height + s
                 seen[key] = Box(len(boxes), sid, w, h, w * h)
         boxes.append(list(seen.values()))
     demand = [sum(counts[i] for i in items) for items in classes]
 
     fillers = sorted((b for k, bs in enumerate(boxes) if k not in large for b in bs),
                      key=lambda b: (-b.area, b.cls, b.shape))
-    kinds = _column_kinds(boxes, large, fillers, H)
+    kinds = _column_kinds(boxes, large, fillers, H, demand)
     work.add(NODE_UNITS * len(kinds))
     found: dict[tuple, list] = {}
     for fw in FILLER_WEIGHTS:
@@ -122,10 +123,10 @@ def column_layout(lib: ShapeLibrary, counts: list[int], usable, work: Work, budg
         return None
     # the fewest column sheets first; the smaller parts decide the final count
     best = None
-    for key in sorted(found)[:FINISHED]:
+    for key in sorted(found)[:finished]:
         if best is not None and (work.units >= budget_units or stop() or len(best[1]) <= lower):
             break
-        placed = _finish(lib, classes, counts, found[key], usable, slack, work)
+        placed = _finish(lib, classes, counts, found[key], usable, work)
         if placed is None:
             continue
         final = (len(placed), sum(lib.shapes[sid].area for _i, sid, _x, _y in placed[-1]))
@@ -134,7 +135,7 @@ def column_layout(lib: ShapeLibrary, counts: list[int], usable, work: Work, budg
     return None if best is None else best[1]
 
 
-def _finish(lib: ShapeLibrary, classes, counts: list[int], layouts, usable, slack: float, work: Work):
+def _finish(lib: ShapeLibrary, classes, counts: list[int], layouts, usable, work: Work):
     """The column sheets with concrete items at grid positions, then the rest
     placed (:func:`_place_rest`); None if rounding pushed a part out."""
     x0, y0, x1, y1 = usable
@@ -149,13 +150,15 @@ def _finish(lib: ShapeLibrary, classes, counts: list[int], layouts, usable, slac
         for b, x, y in pieces:
             item = pool[b.cls][used[b.cls]]
             used[b.cls] += 1
-            sid = _same_box_shape(lib, item, b, slack)
-            # the grown box starts at (x0 - s/2 + x, ...): the part's own box half the spacing further in
-            px = math.ceil((x0 + x) * scale)
-            py = math.ceil((y0 + y) * scale)
+            sid = _same_box_shape(lib, item, b)
+            # the grown box starts at (x0 - s/2 + x, ...): the part's own box half the spacing further
+            # in; positions are rounded to the grid and kept inside the usable area, so a gap may be
+            # short of the spacing by a grid unit or two (about 1e-10 mm), far below the tolerance
             sh = lib.shapes[sid]
-            if px > math.floor((x1 - sh.width) * scale) or py > math.floor((y1 - sh.height) * scale):
-                return None  # cannot happen with the slack; kept safe
+            px = min(round((x0 + x) * scale), math.floor((x1 - sh.width) * scale))
+            py = min(round((y0 + y) * scale), math.floor((y1 - sh.height) * scale))
+            if px < math.ceil(x0 * scale) or py < math.ceil(y0 * scale):
+                return None  # cannot happen: boxes fit the area; kept safe
             sheet = sheet.with_part(sid, px, py)
             out.append((item, sid, px, py))
         sheets.append(sheet)
@@ -216,11 +219,11 @@ def _column_sheets(kinds, demand: list[int], large: list[int], fillers: list[Box
     return layouts
 
 
-def _same_box_shape(lib: ShapeLibrary, item: int, b: Box, slack: float) -> int:
+def _same_box_shape(lib: ShapeLibrary, item: int, b: Box) -> int:
     """The shape of ``item`` whose box is ``b``'s (items of a class share box sizes)."""
     for sid in lib.item_shapes[item]:
         sh = lib.shapes[sid]
-        if abs(sh.width + lib.spacing + slack - b.w) < 1e-6 and abs(sh.height + lib.spacing + slack - b.h) < 1e-6:
+        if abs(sh.width + lib.spacing - b.w) < 1e-6 and abs(sh.height + lib.spacing - b.h) < 1e-6:
             return sid
     return b.shape
 
@@ -235,29 +238,38 @@ def _top_fill(cw: float, free_h: float, fillers: list[Box]) -> float:
     return got
 
 
-def _column_kinds(boxes: list[list[Box]], large: list[int], fillers: list[Box], H: float):
+def _column_kinds(boxes: list[list[Box]], large: list[int], fillers: list[Box], H: float, demand: list[int]):
     """(width, boxes bottom to top, fill of the top by smaller parts) of the
-    fullest stacks of large parts, per width."""
+    fullest stacks of large parts, per width: a branch-and-bound search per
+    leading box (at most KIND_NODES nodes), the KINDS_PER_WIDTH fullest kept."""
     options = [b for k in large for b in boxes[k]]
     kinds = []
     for lead in options:
         cw = lead.w
-        fit = sorted((b for b in options if b.w <= cw), key=lambda b: (-b.h, b.cls, b.shape))
+        fit = sorted((b for b in options if b.w <= cw), key=lambda b: (-b.w, -b.h, b.cls, b.shape))
         found: list[tuple[float, tuple[Box, ...]]] = []
+        nodes = [0]
 
-        def grow(start: int, stack: tuple[Box, ...], height: float) -> None:
-            if stack and lead in stack:
-                found.append((sum(b.area for b in stack), stack))
-            if len(found) > 2000:
-                return
+        def floor_area() -> float:
+            return found[-1][0] if len(found) >= KINDS_PER_WIDTH else -1.0
+
+        def grow(start: int, stack: tuple[Box, ...], height: float, area: float, have: dict) -> None:
+            nodes[0] += 1
+            if lead in stack and area > floor_area():
+                found.append((area, stack))
+                found.sort(key=lambda f: (-f[0], [(b.cls, b.shape) for b in f[1]]))
+                del found[KINDS_PER_WIDTH:]
             for j in range(start, len(fit)):
+                if nodes[0] >= KIND_NODES or area + (H - height) * cw <= floor_area():
+                    return
                 b = fit[j]
-                if height + b.h <= H:
-                    grow(j, stack + (b,), height + b.h)
+                if height + b.h <= H and have.get(b.cls, 0) < demand[b.cls]:
+                    have[b.cls] = have.get(b.cls, 0) + 1
+                    grow(j, stack + (b,), height + b.h, area + b.area, have)
+                    have[b.cls] -= 1
 
-        grow(0, (), 0.0)
-        found.sort(key=lambda f: (-f[0], [(b.cls, b.shape) for b in f[1]]))
-        for _a, stack in found[:KINDS_PER_WIDTH]:
+        grow(0, (), 0.0, 0.0, {})
+        for _a, stack in found:
             kinds.append((cw, stack, _top_fill(cw, H - sum(b.h for b in stack), fillers)))
     # one entry per distinct (width, counts)
     out, seen = [], set()
