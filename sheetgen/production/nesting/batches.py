@@ -2,9 +2,13 @@
 
 Large runs: when every quantity shares a factor (kits), the run is cut into
 batches of whole units of at most :data:`BATCH_PARTS` parts; a batch is nested
-with the full search, its sheets but the last (the well-filled ones) are kept
-as *patterns* and repeated as often as the remaining parts allow, and what is
-left is nested again the same way. Repeated patterns cost one search, the
+with the full search, its sheets (all of them for whole units; otherwise all
+but the last, the well-filled ones) are kept as *patterns* and repeated as
+often as the remaining parts allow, and what is left is nested again the same
+way. Each batch starts with the column layouts of
+:mod:`~sheetgen.production.nesting.columns`; the order search runs when they miss
+the bound, and the assignment search of :mod:`~sheetgen.production.nesting.assign`
+with what is left of the batch's budget. Repeated patterns cost one search, the
 shop cuts one program many times, and memory stays bounded.
 """
 
@@ -58,7 +62,7 @@ def sheet_run(lib, counts, usable, lower, work, budget, rng, clock, jobs):
         # first layout, always finished (bounded work, never cut by the clock, so the same on any
         # machine); it may use the whole run's budget, the first batch's NFPs serving the rest
         got = column_layout(lib, batch, usable, work, max(stage_end, budget), share_lower,
-                            finished=3 if last else 1) or []
+                            finished=3) or []
         unplaced_items: list[int] = []
         if not got or (last and len(got) > share_lower and work.units < stage_end):
             stage = Budget(work, work.units + int(max(0, stage_end - work.units) * (1 - ASSIGN_SHARE)))
@@ -79,7 +83,10 @@ def sheet_run(lib, counts, usable, lower, work, budget, rng, clock, jobs):
             sheets.extend(got)
             unplaced.extend(unplaced_items)
             break
-        block = got[:-1] if len(got) > 1 else got
+        # the well-filled sheets; or, when the batch is whole units (kits), all of them: whole kits
+        # per block leave no odd mix of parts for the end
+        whole = not unplaced_items and _units(remaining) > 1
+        block = got if whole or len(got) == 1 else got[:-1]
         used = [0] * len(counts)
         for sheet in block:
             for item, *_ in sheet:
@@ -89,6 +96,14 @@ def sheet_run(lib, counts, usable, lower, work, budget, rng, clock, jobs):
             sheets.extend(block)
         remaining = [r - times * u for r, u in zip(remaining, used)]
     return sheets, unplaced, stages, clocks
+
+
+def _units(remaining: list[int]) -> int:
+    """The common factor of the counts (kits in a kit run)."""
+    g = 0
+    for r in remaining:
+        g = math.gcd(g, r)
+    return g
 
 
 def _key(lib, sheets) -> tuple:
