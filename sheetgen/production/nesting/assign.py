@@ -30,7 +30,7 @@ from sheetgen.production.nesting.decode import Decoded, Decoder
 from sheetgen.production.nesting.place import RULES, ShapeLibrary, Work
 from sheetgen.production.nesting.search import late_acceptance
 
-SheetParts = list[tuple[int, int, int, int]]   # (item, shape id, px, py)
+SheetParts = list[tuple[int, int, float, float]]   # (item, shape id, px, py), positions in grid units
 
 PAIR_STALL = 60        # order-search steps without progress before a pair is given up
 TRIPLE_STALL = 80
@@ -42,11 +42,7 @@ def _claims(lib: ShapeLibrary) -> list[float]:
     """Per item, the area it takes from a sheet in this search: its convex
     hull (a frame counts as its whole rectangle; what its window holds is
     counted again, which only makes the search keep frames placed first)."""
-    got = getattr(lib, "_claims", None)
-    if got is None:
-        got = [lib.shapes[ids[0]].polygon.convex_hull.area for ids in lib.item_shapes]
-        lib._claims = got
-    return got
+    return lib.hull_areas()
 
 
 def _area(lib: ShapeLibrary, sheet: SheetParts) -> float:

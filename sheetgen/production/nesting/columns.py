@@ -332,7 +332,7 @@ def _best_sheet(kinds, left: list[int], large: list[int], W: float, H: float, fw
 def _place_rest(lib: ShapeLibrary, rest: list[int], usable, sheets: list[Sheet], placed, work: Work):
     """The remaining parts, largest convex hull first, each onto the first
     sheet with room (windows included), new sheets when none has."""
-    hull = [lib.shapes[ids[0]].polygon.convex_hull.area for ids in lib.item_shapes]
+    hull = lib.hull_areas()
     order = sorted(range(len(rest)), key=lambda p: (-hull[rest[p]], rest[p], p))
     dec = Decoder(lib, rest, usable, len(rest) + len(sheets), work)
     st = State(tuple(sheets), tuple(frozenset() for _ in sheets), (), (), 0.0)
