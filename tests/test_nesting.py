@@ -599,3 +599,18 @@ def test_frames_windows_take_the_parts_that_fit_them():
     verify(result, items)
     independent_check(result, items, 0, 3)
     assert len(result.sheets) == 1 and not result.unplaced
+
+
+@pytest.mark.parametrize("sheet", [(40, 30), (65, 30), (100, 35)])
+def test_parts_alike_in_size_keep_their_own_allowed_angles(sheet):
+    # Source: the contract of NestItem.rotations_deg (a part turns only by the
+    # angles it allows). Two parts of the same 30 x 10 box, one allowed a
+    # quarter turn, one not: upright 10 x 30 boxes stack in columns, and only
+    # the first may stand in them.
+    items = [NestItem("turns", box(0, 0, 30, 10), 3, (0.0, 90.0)), NestItem("fixed", box(0, 0, 30, 10), 3, (0.0,))]
+    result = nest(items, sheet_mm=sheet, effort=1, time_limit_s=600)
+    verify(result, items)
+    independent_check(result, items, 0, 0)
+    for s in result.sheets:
+        for p in s:
+            assert p.angle_deg in items[p.item].rotations_deg

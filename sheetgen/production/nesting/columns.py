@@ -28,6 +28,7 @@ import math
 from collections.abc import Callable
 from dataclasses import dataclass
 
+from sheetgen.errors import GeometryBug
 from sheetgen.production.nesting.decode import Decoder, State
 from sheetgen.production.nesting.place import RULES, Sheet, ShapeLibrary, Work
 
@@ -51,13 +52,14 @@ class Box:
 
 
 def _classes(lib: ShapeLibrary, counts: list[int]):
-    """Items grouped by their box size (rounded to 1e-6 mm): list of (items, boxes at each angle)."""
+    """Items grouped by the box sizes their allowed angles give (rounded to
+    1e-6 mm): items of a class can stand in for each other in a column."""
     groups: dict[tuple, list[int]] = {}
     for i, c in enumerate(counts):
         if c <= 0:
             continue
-        sh = lib.shapes[lib.item_shapes[i][0]]
-        key = tuple(sorted((round(sh.width, 6), round(sh.height, 6))))
+        key = tuple(sorted({(round(lib.shapes[sid].width, 6), round(lib.shapes[sid].height, 6))
+                            for sid in lib.item_shapes[i]}))
         groups.setdefault(key, []).append(i)
     return list(groups.values())
 
@@ -113,8 +115,8 @@ def column_layout(lib: ShapeLibrary, counts: list[int], usable, work: Work, budg
     for fw in FILLER_WEIGHTS:
         favour = {c: 1.0 for c in large}
         for _round in range(ROUNDS):
-            if work.units >= budget_units or stop():
-                return None
+            if found and (work.units >= budget_units or stop()):
+                break
             layouts = _column_sheets(kinds, demand, large, fillers, W, H, (fw, favour), work)
             key = (len(layouts), sum(b.area for b, _x, _y in layouts[-1]) if layouts else 0.0)
             found.setdefault(key, layouts)
@@ -225,7 +227,7 @@ def _same_box_shape(lib: ShapeLibrary, item: int, b: Box) -> int:
         sh = lib.shapes[sid]
         if abs(sh.width + lib.spacing - b.w) < 1e-6 and abs(sh.height + lib.spacing - b.h) < 1e-6:
             return sid
-    return b.shape
+    raise GeometryBug(f"item {item}: no allowed angle gives the box of its class")
 
 
 def _top_fill(cw: float, free_h: float, fillers: list[Box]) -> float:
