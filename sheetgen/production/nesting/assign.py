@@ -193,3 +193,35 @@ def reassign(lib: ShapeLibrary, sheets: list[SheetParts], usable, lower: int, wo
             break
         last_to_end()
     return sheets
+
+
+def compact_last(lib: ShapeLibrary, sheets: list[SheetParts], usable, work: Work, budget_units: int,
+                 rng: random.Random, stop: Callable[[], bool]) -> list[SheetParts]:
+    """The last sheet laid out afresh (its own order and largest first, under
+    every placement rule, then a short order search) when that ends its parts
+    further left: a longer clean remnant at its far end."""
+    if not sheets or not sheets[-1] or work.units >= budget_units or stop():
+        return sheets
+    last = sheets[-1]
+    reach = max(px / lib.scale + lib.shapes[sid].width for _i, sid, px, _py in last)
+    part_items = [e[0] for e in last]
+    dec = Decoder(lib, part_items, usable, 1, work)
+    best: Decoded | None = None
+
+    def cost(d: Decoded) -> float:
+        st = d.final
+        return (usable[2] - usable[0]) * len(st.unplaced) + (st.sheets[0].x_max if st.sheets else 0.0)
+
+    for plan in _starts(lib, part_items, [0] * len(part_items)):
+        for rule in range(len(RULES)):
+            if work.units >= budget_units or stop():
+                break
+            d = dec.decode(plan, rule)
+            if best is None or cost(d) < cost(best):
+                best = d
+    if best is None:
+        return sheets
+    best, _ = late_acceptance(dec, best, cost, rng=rng, budget_units=budget_units, stop=stop, stall_limit=PAIR_STALL)
+    if best.final.unplaced or not best.final.sheets or best.final.sheets[0].x_max >= reach - 1e-9:
+        return sheets
+    return sheets[:-1] + [_sheets_of(dec, best)[0]]

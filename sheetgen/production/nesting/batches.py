@@ -17,7 +17,7 @@ from __future__ import annotations
 import math
 import time
 
-from sheetgen.production.nesting.assign import reassign
+from sheetgen.production.nesting.assign import compact_last, reassign
 from sheetgen.production.nesting.budget import Budget, StageClock, progress_of
 from sheetgen.production.nesting.columns import column_layout
 from sheetgen.production.nesting.improve import sheet_search
@@ -25,6 +25,7 @@ from sheetgen.production.nesting.improve import sheet_search
 
 NON_LAST_SHARE = 4           # a batch that is repeated gets 1/NON_LAST_SHARE of what is left of the budget
 BATCH_PARTS = 440            # parts in one batch of a large run (about 20 demo kits)
+COMPACT_UNITS = 600_000      # work of the last sheet's compaction per batch (about 0.3 s)
 ASSIGN_SHARE = 0.5           # of a stage's budget for the assignment search (assign.py)
 
 
@@ -79,6 +80,9 @@ def sheet_run(lib, counts, usable, lower, work, budget, rng, clock, jobs):
             stages.append(Budget(work, stage_end))
             got = reassign(lib, got, usable, share_lower, work, stage_end, rng, stage_clock.stop)
             stages[-1].spent()
+        if got:  # a longer remnant on the batch's last sheet (the run's last, or repeated with its block);
+            # a small fixed amount of work, never cut by the clock, so the same on any machine
+            got = compact_last(lib, got, usable, work, work.units + COMPACT_UNITS, rng, lambda: False)
         if last:
             sheets.extend(got)
             unplaced.extend(unplaced_items)
