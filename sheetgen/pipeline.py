@@ -87,6 +87,28 @@ def _plan(args):
 
 
 @dataclass(frozen=True)
+class NestOptions:
+    """Settings of a nest run that replace the spec's (None: the spec's value).
+
+    Without a spec (extra parts only) kerf, spacing and margin default to 0,
+    the time limit to 10 s and the seed to 1, and a sheet size or a strip width
+    must be given. ``extra`` holds parts read from DXF files as (name, nominal
+    polygon, circles, qty); ``rotations_deg`` replaces every part's allowed
+    turns (extra parts default to quarter turns)."""
+
+    sheet_mm: tuple[float, float] | None = None
+    strip_width_mm: float | None = None
+    margin_mm: float | None = None
+    spacing_mm: float | None = None
+    kerf_mm: float | None = None
+    time_limit_s: float | None = None
+    effort: float | None = None
+    seed: int | None = None
+    rotations_deg: tuple[float, ...] | None = None
+    extra: tuple = ()
+
+
+@dataclass(frozen=True)
 class NestRun:
     """A production run nested and verified: the nest items (one per distinct
     part), the nester's result and every sheet's contours in the nester's order."""
@@ -95,6 +117,7 @@ class NestRun:
     result: NestResult
     sheets: tuple[PlacedSheet, ...]
     patterns: tuple[tuple[int, ...], ...]  # sheet positions (0-based) cut from one layout
+    settings: NestOptions | None = None    # the settings used, every default filled in
 
 
 def _jobs(jobs: int | None) -> int:
@@ -103,26 +126,61 @@ def _jobs(jobs: int | None) -> int:
     return max(1, os.cpu_count() or 1) if jobs is None else jobs
 
 
-def nest_run(spec: Spec, kit: Kit, kits: int, progress: Any = None, jobs: int | None = None) -> NestRun:
-    """``kits`` copies of the kit's parts, kerf-compensated, nested on the
-    spec's sheet stock and verified (``jobs`` processes; the layout does not
-    depend on it)."""
-    from sheetgen.errors import GeometryBug, ParameterError
+def resolve_nest_options(spec: Spec | None, options: NestOptions | None = None) -> NestOptions:
+    """``options`` with every unset value taken from ``spec`` (or the defaults
+    of a run without one, see :class:`NestOptions`)."""
+    o = options or NestOptions()
+    if spec is None:
+        sheet = o.sheet_mm if o.strip_width_mm is None else None
+        return replace(o, sheet_mm=sheet, kerf_mm=o.kerf_mm or 0.0, spacing_mm=o.spacing_mm or 0.0,
+                       margin_mm=o.margin_mm or 0.0, time_limit_s=10.0 if o.time_limit_s is None else o.time_limit_s,
+                       seed=1 if o.seed is None else o.seed)
+    effort = o.effort if o.effort is not None else (spec.nest.effort or None)
+    if o.strip_width_mm is not None:
+        sheet = None
+    else:
+        sheet = o.sheet_mm if o.sheet_mm is not None else (spec.sheet.width_mm, spec.sheet.height_mm)
+    return replace(o, sheet_mm=sheet,
+                   kerf_mm=spec.laser.kerf_mm if o.kerf_mm is None else o.kerf_mm,
+                   spacing_mm=spec.nest.spacing_mm if o.spacing_mm is None else o.spacing_mm,
+                   margin_mm=spec.sheet.margin_mm if o.margin_mm is None else o.margin_mm,
+                   time_limit_s=spec.nest.time_limit_s if o.time_limit_s is None else o.time_limit_s,
+                   effort=effort, seed=spec.nest.seed if o.seed is None else o.seed)
+
+
+def nest_run(spec: Spec | None, kit: Kit | None, kits: int, progress: Any = None, jobs: int | None = None,
+             options: NestOptions | None = None) -> NestRun:
+    """``kits`` copies of the kit's parts (none without a kit) and the extra
+    parts of ``options``, kerf-compensated, nested on the sheet stock (or the
+    strip) and verified (``jobs`` processes; the layout does not depend on it).
+    Unset ``options`` come from ``spec``: see :func:`resolve_nest_options`."""
+    from sheetgen.errors import ParameterError
     from sheetgen.production.nesting import nest, sheet_patterns, verify
-    from sheetgen.production.runs import kit_items, placed_sheets
+    from sheetgen.production.runs import extra_items, kit_items, placed_sheets
 
     if kits < 1:
         raise ParameterError(f"--kits {kits}: must be a whole number >= 1")
-    items, sources = kit_items(kit, spec.laser.kerf_mm, kits)
-    result = nest(items, sheet_mm=(spec.sheet.width_mm, spec.sheet.height_mm), margin_mm=spec.sheet.margin_mm,
-                  spacing_mm=spec.nest.spacing_mm, time_limit_s=spec.nest.time_limit_s,
-                  effort=spec.nest.effort or None, seed=spec.nest.seed, progress=progress, jobs=_jobs(jobs))
+    o = resolve_nest_options(spec, options)
+    kerf = float(o.kerf_mm or 0.0)
+    items: list[NestItem] = []
+    sources: list = []
+    if kit is not None:
+        items, sources = kit_items(kit, kerf, kits, o.rotations_deg)
+    if o.extra:
+        e_items, e_sources = extra_items(list(o.extra), kerf, o.rotations_deg or (0.0, 90.0, 180.0, 270.0))
+        items += e_items
+        sources += e_sources
+    if not items:
+        raise ParameterError("nothing to nest: give a parameter file or --extra FILE.dxf")
+    result = nest(items, sheet_mm=o.sheet_mm, strip_width_mm=o.strip_width_mm, margin_mm=o.margin_mm or 0.0,
+                  spacing_mm=o.spacing_mm or 0.0, time_limit_s=10.0 if o.time_limit_s is None else o.time_limit_s,
+                  effort=o.effort, seed=1 if o.seed is None else o.seed, progress=progress, jobs=_jobs(jobs))
     try:
         verify(result, items)
     except GeometryBug as exc:
         raise GeometryBug(f"nested layout failed verification: {exc}") from None
     return NestRun(tuple(items), result, tuple(placed_sheets(result, items, sources)),
-                   tuple(tuple(g) for g in sheet_patterns(result)))
+                   tuple(tuple(g) for g in sheet_patterns(result)), o)
 
 
 def run_build(spec: Spec, kits: int, progress: Any = None, jobs: int | None = None) -> BuildResult:

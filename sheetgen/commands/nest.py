@@ -5,6 +5,7 @@ from __future__ import annotations
 import json
 import sys
 import time
+from dataclasses import replace
 
 import click
 
@@ -91,21 +92,14 @@ def command(params, kits, extras, sheet, strip_width, rotations, spacing, margin
     need more than 2 GB, is refused (exit 2) before any work; the message names
     the count and the limit (about 7,000 demo kits fit).
     """
-    from sheetgen.errors import GeometryBug
     from sheetgen.io.output import staged_dir
     from sheetgen.io.sheets import write_sheets
-    from sheetgen.production.nesting import nest, sheet_patterns, verify
-    from sheetgen.production.runs import (
-        extra_items,
-        kit_items,
-        nest_summary,
-        parse_rotations,
-        placed_sheets,
-    )
+    from sheetgen.pipeline import NestOptions, nest_run, resolve_nest_options
+    from sheetgen.production.runs import nest_summary, parse_rotations
 
     start = time.perf_counter()
     angles = parse_rotations(rotations) if rotations is not None else None
-    items, sources = [], []
+    spec, kit = None, None
     svg_style = None  # the cut-ready SVG's colours: the parameters' when given, else the defaults
     if params is not None:
         from sheetgen.design.kit import build_kit
@@ -115,75 +109,59 @@ def command(params, kits, extras, sheet, strip_width, rotations, spacing, margin
         from sheetgen.io.cutsvg import style_from_spec
 
         svg_style = style_from_spec(spec)
-        kerf = spec.laser.kerf_mm if kerf is None else kerf
-        spacing = spec.nest.spacing_mm if spacing is None else spacing
-        margin = spec.sheet.margin_mm if margin is None else margin
-        time_limit = spec.nest.time_limit_s if time_limit is None else time_limit
-        if effort is None and spec.nest.effort > 0:
-            effort = spec.nest.effort
-        seed = spec.nest.seed if seed is None else seed
-        if sheet is None and strip_width is None:
-            sheet_mm = (spec.sheet.width_mm, spec.sheet.height_mm)
-        else:
-            sheet_mm = parse_size(sheet, "--sheet") if sheet is not None else None
-        _check_kerf(kerf)
-        items, sources = kit_items(build_kit(spec), kerf, 1 if kits is None else kits, angles)
+        sheet_mm = parse_size(sheet, "--sheet") if sheet is not None else None
+        o = resolve_nest_options(spec, NestOptions(sheet_mm=sheet_mm, strip_width_mm=strip_width, margin_mm=margin,
+                                                   spacing_mm=spacing, kerf_mm=kerf, time_limit_s=time_limit,
+                                                   effort=effort, seed=seed))
+        _check_kerf(o.kerf_mm or 0.0)
+        kit = build_kit(spec)
+        if kits is not None and kits < 1:
+            raise ParameterError(f"--kits {kits}: must be a whole number >= 1")
     else:
         if overrides:
             raise ParameterError("--set needs a parameter file (PARAMS)")
         if kits is not None:
             raise ParameterError("--kits needs a parameter file (PARAMS)")
-        kerf, spacing, margin = kerf or 0.0, spacing or 0.0, margin or 0.0
-        time_limit = 10.0 if time_limit is None else time_limit
-        seed = 1 if seed is None else seed
         if sheet is None and strip_width is None:
             raise ParameterError("give --sheet WxH or --strip-width W (or a parameter file)")
         sheet_mm = parse_size(sheet, "--sheet") if sheet is not None else None
-        _check_kerf(kerf)
+        o = resolve_nest_options(None, NestOptions(sheet_mm=sheet_mm, strip_width_mm=strip_width, margin_mm=margin,
+                                                   spacing_mm=spacing, kerf_mm=kerf, time_limit_s=time_limit,
+                                                   effort=effort, seed=seed))
+        _check_kerf(o.kerf_mm or 0.0)
     if sheet is not None and strip_width is not None:
         raise ParameterError("--sheet and --strip-width: give one, not both")
-    if strip_width is not None:
-        sheet_mm = None
-    for name, value, hi in (("--spacing", spacing, 100.0), ("--margin", margin, 500.0),
-                            ("--time-limit", time_limit, 3600.0),
-                            ("--effort", 0.0 if effort is None else effort, 100000.0)):
-        if not (0 <= value <= hi):
+    for name, value, hi in (("--spacing", o.spacing_mm, 100.0), ("--margin", o.margin_mm, 500.0),
+                            ("--time-limit", o.time_limit_s, 3600.0),
+                            ("--effort", 0.0 if o.effort is None else o.effort, 100000.0)):
+        if not (0 <= float(value or 0.0) <= hi):
             raise ParameterError(f"{name} {value:g}: must be from 0 to {hi:g}")
     jobs = resolve_jobs(jobs)
+    found = []
     if extras:
         from sheetgen.io.dxf_read import read_dxf_parts
 
-        found = []
         for text in extras:
             path, qty = parse_extra(text)
             for part in read_dxf_parts(path):
                 found.append((part.name, part.polygon, part.circles, qty))
-        e_items, e_sources = extra_items(found, kerf, angles or (0.0, 90.0, 180.0, 270.0))
-        items += e_items
-        sources += e_sources
-    if not items:
-        raise ParameterError("nothing to nest: give a parameter file or --extra FILE.dxf")
+    o = replace(o, rotations_deg=angles, extra=tuple(found))
 
     progress = Progress()
     try:
-        result = nest(items, sheet_mm=sheet_mm, strip_width_mm=strip_width, margin_mm=margin, spacing_mm=spacing,
-                      time_limit_s=time_limit, effort=effort, seed=seed, progress=progress, jobs=jobs)
+        run = nest_run(spec, kit, 1 if kits is None else kits, progress, jobs, o)
     finally:
         progress.close()
-    try:
-        verify(result, items)
-    except GeometryBug as exc:
-        raise GeometryBug(f"nested layout failed verification: {exc}") from None
-    sheets = placed_sheets(result, items, sources)
-    size = result.sheet_size_mm
+    result, size = run.result, run.result.sheet_size_mm
     with staged_dir(out_dir) as tmp:
-        files = write_sheets(tmp, sheets, size, margin, patterns=sheet_patterns(result), jobs=jobs,
+        files = write_sheets(tmp, list(run.sheets), size, o.margin_mm, patterns=run.patterns, jobs=jobs,
                              svg_style=svg_style)
     from sheetgen.production.nesting.budget import EFFORT_PER_SECOND
 
-    used_effort = effort if effort is not None else round(time_limit * EFFORT_PER_SECOND, 6)
-    summary = nest_summary(result) | {"kerf_mm": kerf, "seed": seed, "effort": used_effort, "time_limit_s": time_limit,
-                                      "files": files,
+    time_limit = o.time_limit_s
+    used_effort = o.effort if o.effort is not None else round(time_limit * EFFORT_PER_SECOND, 6)
+    summary = nest_summary(result) | {"kerf_mm": o.kerf_mm, "seed": o.seed, "effort": used_effort,
+                                      "time_limit_s": time_limit, "files": files,
                                       "time_s": round(time.perf_counter() - start, 2)}
     if as_json:
         click.echo(json.dumps(summary))

@@ -2,9 +2,13 @@
 
 Large runs: when every quantity shares a factor (kits), the run is cut into
 batches of whole units of at most :data:`BATCH_PARTS` parts; a batch is nested
-with the full search, its sheets but the last (the well-filled ones) are kept
-as *patterns* and repeated as often as the remaining parts allow, and what is
-left is nested again the same way. Repeated patterns cost one search, the
+with the full search, its sheets (all of them for whole units; otherwise all
+but the last, the well-filled ones) are kept as *patterns* and repeated as
+often as the remaining parts allow, and what is left is nested again the same
+way. Each batch starts with the column layouts of
+:mod:`~sheetgen.production.nesting.columns`; the order search runs when they miss
+the bound, and the assignment search of :mod:`~sheetgen.production.nesting.assign`
+with what is left of the batch's budget. Repeated patterns cost one search, the
 shop cuts one program many times, and memory stays bounded.
 """
 
@@ -13,12 +17,16 @@ from __future__ import annotations
 import math
 import time
 
+from sheetgen.production.nesting.assign import compact_last, reassign
 from sheetgen.production.nesting.budget import Budget, StageClock, progress_of
+from sheetgen.production.nesting.columns import column_layout
 from sheetgen.production.nesting.improve import sheet_search
 
 
 NON_LAST_SHARE = 4           # a batch that is repeated gets 1/NON_LAST_SHARE of what is left of the budget
 BATCH_PARTS = 440            # parts in one batch of a large run (about 20 demo kits)
+COMPACT_UNITS = 600_000      # work of the last sheet's compaction per batch (about 0.3 s)
+ASSIGN_SHARE = 0.5           # of a stage's budget for the assignment search (assign.py)
 
 
 def sheet_run(lib, counts, usable, lower, work, budget, rng, clock, jobs):
@@ -41,8 +49,7 @@ def sheet_run(lib, counts, usable, lower, work, budget, rng, clock, jobs):
         last = total <= BATCH_PARTS
         batch = list(remaining) if last else _batch(remaining)
         share = left if last else left // NON_LAST_SHARE
-        stage = Budget(work, work.units + share)
-        stages.append(stage)
+        stage_end = work.units + share
         now = time.monotonic()
         left_s = max(0.0, clock.deadline - now)
         stage_clock = StageClock(clock, now + (left_s if last or left == 0 else left_s * share / left))
@@ -52,17 +59,38 @@ def sheet_run(lib, counts, usable, lower, work, budget, rng, clock, jobs):
         part_items = [i for i, q in enumerate(batch) for _ in range(q)]
         # a batch may use one sheet more than its share of the whole run's bound
         share_lower = 1 if not last else max(1, lower - len(sheets))
-        placements, unplaced_parts, n_sheets = sheet_search(
-            lib, part_items, usable, share_lower, stage, rng, stage_clock,
-            progress_of(clock, work, work.units, share, f0, f1), compact=last, jobs=jobs)
-        got = [[] for _ in range(n_sheets)]
-        for p, si, sid, px, py in placements:
-            got[si].append((part_items[p], sid, px, py))
+        # column layouts of the large parts first; the order search when they miss the bound. Like a
+        # first layout, always finished (bounded work, never cut by the clock, so the same on any
+        # machine); it may use the whole run's budget, the first batch's NFPs serving the rest
+        got = column_layout(lib, batch, usable, work, max(stage_end, budget), share_lower,
+                            finished=3) or []
+        unplaced_items: list[int] = []
+        if not got or (last and len(got) > share_lower and work.units < stage_end):
+            stage = Budget(work, work.units + int(max(0, stage_end - work.units) * (1 - ASSIGN_SHARE)))
+            stages.append(stage)
+            placements, unplaced_parts, n_sheets = sheet_search(
+                lib, part_items, usable, share_lower, stage, rng, stage_clock,
+                progress_of(clock, work, work.units, share, f0, f1), compact=last, jobs=jobs)
+            searched: list[list[tuple]] = [[] for _ in range(n_sheets)]
+            for p, si, sid, px, py in placements:
+                searched[si].append((part_items[p], sid, px, py))
+            if not got or (not unplaced_parts and _key(lib, searched) < _key(lib, got)):
+                got, unplaced_items = searched, [part_items[p] for p in unplaced_parts]
+        if not unplaced_items and len(got) > share_lower:
+            stages.append(Budget(work, stage_end))
+            got = reassign(lib, got, usable, share_lower, work, stage_end, rng, stage_clock.stop)
+            stages[-1].spent()
+        if got:  # a longer remnant on the batch's last sheet (the run's last, or repeated with its block);
+            # a small fixed amount of work, never cut by the clock, so the same on any machine
+            got = compact_last(lib, got, usable, work, work.units + COMPACT_UNITS, rng, lambda: False)
         if last:
             sheets.extend(got)
-            unplaced.extend(part_items[p] for p in unplaced_parts)
+            unplaced.extend(unplaced_items)
             break
-        block = got[:-1] if len(got) > 1 else got
+        # the well-filled sheets; or, when the batch is whole units (kits), all of them: whole kits
+        # per block leave no odd mix of parts for the end
+        whole = not unplaced_items and _units(remaining) > 1
+        block = got if whole or len(got) == 1 else got[:-1]
         used = [0] * len(counts)
         for sheet in block:
             for item, *_ in sheet:
@@ -72,6 +100,19 @@ def sheet_run(lib, counts, usable, lower, work, budget, rng, clock, jobs):
             sheets.extend(block)
         remaining = [r - times * u for r, u in zip(remaining, used)]
     return sheets, unplaced, stages, clocks
+
+
+def _units(remaining: list[int]) -> int:
+    """The common factor of the counts (kits in a kit run)."""
+    g = 0
+    for r in remaining:
+        g = math.gcd(g, r)
+    return g
+
+
+def _key(lib, sheets) -> tuple:
+    """Fewer sheets, then less on the last one."""
+    return (len(sheets), sum(lib.shapes[sid].area for _i, sid, _x, _y in sheets[-1]) if sheets else 0.0)
 
 
 def _batch(remaining: list[int]) -> list[int]:

@@ -6,10 +6,15 @@ rule (:data:`~sheetgen.production.nesting.place.RULES`); the best is kept.
 
 Sheet mode (``sheet_mm=(W, H)``): parts go onto as many W x H sheets as
 needed; the usable area is the sheet shrunk by ``margin_mm`` on every side.
-The search first tries to empty the last sheet (a plan must place every part on
-one sheet fewer, the cost being the area left over), then pushes the parts of
-the last sheet towards x = 0 so the remnant at its far end is as long as
-possible.
+Each batch (:mod:`~sheetgen.production.nesting.batches`) starts with column
+layouts of the large parts (:mod:`~sheetgen.production.nesting.columns`); when
+they miss the lower bound, the order search tries to empty the last sheet (a
+plan must place every part on one sheet fewer, the cost being the area left
+over) and pushes the parts of the last sheet towards x = 0 so the remnant at
+its far end is as long as possible; the assignment search
+(:mod:`~sheetgen.production.nesting.assign`) then repacks the last sheet with
+one or two others. Last, the parts of the last sheet are moved into the gaps
+of the others where they fit.
 
 Strip mode (``strip_width_mm=W``): the strip runs along +x from x = 0 with its
 width along y; the length used is the rightmost cut contour plus the margin.

@@ -109,8 +109,15 @@ class ShapeLibrary:
         self._outline = {c: clearance_outline(self.shapes[i].polygon, self.spacing / 2)
                          for c, i in self._canon_rep.items()}
         self._nfp: dict[tuple[int, int], tuple] = {}
+        self._hulls: list[float] | None = None
         self.nfp_computed = 0
         self.work: Work | None = None  # charged for the no-fit polygons computed
+
+    def hull_areas(self) -> list[float]:
+        """Per item, the area of its outline's convex hull (computed once)."""
+        if self._hulls is None:
+            self._hulls = [self.shapes[ids[0]].polygon.convex_hull.area for ids in self.item_shapes]
+        return self._hulls
 
     def nfp(self, fixed: int, moving: int):
         """The shrunk no-fit polygon of two shape ids, in grid units: (all vertices
