@@ -9,8 +9,12 @@ panel faces the zenith. Seen along +x the chassis stacks up as:
     the turning frame between the supports: two ribs on the axle, the tray on
       the ribs, the panel in the rim layer(s) on the tray, the bezel on top
     outboard of the +x support: drive.wheel_spacers spacers, the wheel
-      (drive.layers thick), a gap of drive.mount_gap, then the motor mount with
-      the motor behind it, its pinion meshing with the wheel
+      (drive.layers thick), a gap of drive.mount_gap, then the motor's face:
+      the motor body sits in a box of plates (motor-mount, a plate with a
+      body-shaped opening flush with the motor's face; motor-clamp, a back
+      plate the motor's rear end butts against; two motor-brace side plates
+      joining them, all standing in the base), so the motor's axial place is
+      free and its shaft reaches the pinion whatever its length
 
 All the numbers the part factories share are computed here, once, from a
 resolved Spec (every derived key a number: see sheetgen/design/solver/, which
@@ -82,6 +86,12 @@ class Layout:
     # axle rod
     axle_x0_mm: float
     axle_x1_mm: float
+    # the motor's box of plates (mount_x_mm is the motor's face and the mount plate's inner face)
+    clamp_x_mm: float = 0.0  # inner face of the back plate (the motor's rear end)
+    motor_web_mm: float = 0.0  # material between the body opening and a brace slot, and outside the slot
+    mount_half_w_mm: float = 0.0  # half width (kit y) of the mount and clamp plates about the pinion axis
+    mount_top_z_mm: float = 0.0  # top edge of the mount and clamp plates
+    brace_y_mm: float = 0.0  # centre planes of the braces at pinion_y -+ this
 
     @property
     def panel_z_mm(self) -> float:
@@ -128,20 +138,20 @@ def compute_layout(spec, centre_distance_mm: float) -> Layout:
     n_sp = spec.drive.wheel_spacers
     gap = spec.drive.mount_gap_mm
     wheel_x = support_x + t + n_sp * t  # support, then the spacer stack
-    mount_x = wheel_x + layers * t + gap
-    shaft_end = mount_x + t - spec.motor.shaft_length_mm
+    mount_x = wheel_x + layers * t + gap  # the motor's face, flush with the mount plate's inner face
+    shaft_end = mount_x - spec.motor.shaft_length_mm
     grip = pinion_grip_mm(t, layers)
     if shaft_end > wheel_x + layers * t - grip + 1e-9:
         raise ParameterError(
             f"motor.shaft_length = {spec.motor.shaft_length_mm:g}: grips only "
             f"{max(0.0, wheel_x + layers * t - shaft_end):.3g} mm of the pinion stack (at least {grip:g} mm); "
-            f"with drive.mount_gap = {gap:g} and drive.layers = {layers} it must be at least {t + gap + grip:g} mm "
+            f"with drive.mount_gap = {gap:g} it must be at least {gap + grip:g} mm "
             "(or leave drive.mount_gap at \"auto\")")
     if shaft_end < support_x + t + SHAFT_END_GAP_MM - 1e-9:
         raise ParameterError(
             f"motor.shaft_length = {spec.motor.shaft_length_mm:g}: would reach within {SHAFT_END_GAP_MM:g} mm of the "
             f"drive-side axle support with drive.wheel_spacers = {n_sp} and drive.mount_gap = {gap:g}; must be at "
-            f"most {mount_x - support_x - SHAFT_END_GAP_MM:g} mm (or leave those keys at \"auto\")")
+            f"most {mount_x - support_x - t - SHAFT_END_GAP_MM:g} mm (or leave those keys at \"auto\")")
     a = math.radians(spec.drive.pinion_angle_deg)
     pinion_y = centre_distance_mm * math.sin(a)
     pinion_z = -centre_distance_mm * math.cos(a)
@@ -150,9 +160,12 @@ def compute_layout(spec, centre_distance_mm: float) -> Layout:
         raise ParameterError(
             f"axle.height = {H:g}: the motor body would reach the base; must be at least "
             f"{math.ceil(floor * 10) / 10:g} mm (or turn the pinion with drive.pinion_angle)")
-    base_half_y = max(support_half_y, abs(pinion_y) + spec.motor.body_width_mm / 2 + 4.0) + 10.0
+    web = motor_web_mm(t)
+    half_w = spec.motor.body_width_mm / 2 + 2 * web + t
+    clamp_x = mount_x + spec.motor.body_length_mm
+    base_half_y = max(support_half_y, abs(pinion_y) + half_w) + 10.0
     base_x0 = -(support_x + 2 * t) - 10.0
-    base_x1 = mount_x + t + spec.motor.body_length_mm + 5.0
+    base_x1 = clamp_x + t + 10.0
     return Layout(
         t_mm=t, axle_d_mm=d, axle_height_mm=H,
         tray_half_x_mm=W / 2 + b, tray_half_y_mm=Hp / 2 + b,
@@ -167,11 +180,22 @@ def compute_layout(spec, centre_distance_mm: float) -> Layout:
         pinion_y_mm=pinion_y, pinion_z_mm=pinion_z, centre_distance_mm=centre_distance_mm,
         base_x0_mm=base_x0, base_x1_mm=base_x1, base_half_y_mm=base_half_y,
         axle_x0_mm=-(support_x + 2 * t), axle_x1_mm=wheel_x + layers * t,
+        clamp_x_mm=clamp_x, motor_web_mm=web, mount_half_w_mm=half_w,
+        mount_top_z_mm=pinion_z + spec.motor.body_height_mm / 2 + max(MOTOR_BODY_MARGIN_MM, web),
+        brace_y_mm=spec.motor.body_width_mm / 2 + web + t / 2,
     )
 
 
 MOTOR_BODY_MARGIN_MM = 4.0  # mount plate material round the motor body
 MOTOR_BASE_GAP_MM = 1.0  # least gap, mount plate to the base under the motor
+MOTOR_WEB_MIN_MM = 2.0  # least web between two cuts of a motor plate ...
+MOTOR_WEB_SHEETS = 0.5  # ... and at least this share of the sheet (common practice: a web of half the stock)
+
+
+def motor_web_mm(t_mm: float) -> float:
+    """Material left between the motor's body opening and a brace slot (and outside
+    the slot) in the mount and clamp plates; also the braces' gap to the body."""
+    return max(MOTOR_WEB_MIN_MM, MOTOR_WEB_SHEETS * t_mm)
 
 
 def motor_floor_height_mm(spec, centre_distance_mm: float) -> float:
@@ -179,4 +203,5 @@ def motor_floor_height_mm(spec, centre_distance_mm: float) -> float:
     clear of the base: the pinion sits centre_distance from the axle, toward
     drive.pinion_angle from straight down."""
     pinion_z = -centre_distance_mm * math.cos(math.radians(spec.drive.pinion_angle_deg))
-    return -(pinion_z - spec.motor.body_height_mm / 2 - MOTOR_BODY_MARGIN_MM) + MOTOR_BASE_GAP_MM
+    margin = max(MOTOR_BODY_MARGIN_MM, motor_web_mm(spec.sheet.thickness_mm))
+    return -(pinion_z - spec.motor.body_height_mm / 2 - margin) + MOTOR_BASE_GAP_MM
