@@ -14,6 +14,7 @@ from sheetgen.mechanics.pulse import AxleLoad
 from sheetgen.mechanics.tracking import YearTracking
 from sheetgen.mechanics.massprops import Counterweight, MassProperties
 from sheetgen.mechanics.load_geometry import WindPlate
+from sheetgen.mechanics.mount import MountStiffness
 
 
 CAUTIONS = (
@@ -63,6 +64,7 @@ class BalanceReport:
     notes: tuple[str, ...] = field(default=())
     pulse_capacitance_uF: float = 0.0
     pulse_voltage_V: float = 0.0
+    mount: MountStiffness | None = None  # the motor mount's give at the pinion (sheetgen.mechanics.mount)
 
     @property
     def ok(self) -> bool:
@@ -119,6 +121,7 @@ class BalanceReport:
             },
             "ballast_kg": sig(self.tipping.ballast_kg),
             "checks": [c.to_json() for c in self.checks],
+            "motor_mount": None if self.mount is None else self.mount.to_json(),
             "total_mass_kg": sig(m.total_mass_kg),
             "kit_cg_mm": [sig(v) for v in m.total_cg_mm],
             "tracking": {

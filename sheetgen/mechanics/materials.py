@@ -32,6 +32,8 @@ class SheetMaterial:
     bending_strength_MPa: float  # modulus of rupture used for the tooth check
     bending_strength_source: str
     note: str = ""
+    modulus_MPa: float = 0.0  # modulus of elasticity in bending, taken low (the mount's stiffness check)
+    modulus_source: str = ""
 
 
 @dataclass(frozen=True)
@@ -56,6 +58,10 @@ SHEET_MATERIALS: dict[str, SheetMaterial] = {
             "EN 622-5:2009, general-purpose MDF up to 9 mm: bending strength at least 23 N/mm2 "
             "(a board acceptance minimum, not a design value)"),
         note="Laser-cut MDF gives off formaldehyde-laden smoke: cut only with extraction.",
+        modulus_MPa=2500.0,
+        modulus_source=(
+            "EN 622-5:2009, general-purpose MDF: modulus of elasticity in bending at least about 2500 N/mm2 "
+            "for thin boards (from memory; a board acceptance minimum, taken as the design value)"),
     ),
     "birch_plywood": SheetMaterial(
         key="birch_plywood",
@@ -68,6 +74,10 @@ SHEET_MATERIALS: dict[str, SheetMaterial] = {
             "from memory: in-plane bending strength of thin 3-ply birch across its weaker direction, "
             "taken low (about a third of clear birch's modulus of rupture); verify with the supplier's data sheet"),
         note="Glue lines vary between suppliers; laser-grade boards cut cleaner.",
+        modulus_MPa=4000.0,
+        modulus_source=(
+            "from memory: bending modulus of thin 3-ply birch plywood across its weaker direction, taken "
+            "low (clear birch is near 14000 N/mm2 along the grain); verify with the supplier's data sheet"),
     ),
     "cast_acrylic": SheetMaterial(
         key="cast_acrylic",
@@ -80,6 +90,10 @@ SHEET_MATERIALS: dict[str, SheetMaterial] = {
             "manufacturers' data sheets for cast PMMA, flexural strength to ISO 178: about 110 MPa (from memory); "
             "acrylic is notch-sensitive and laser-cut edges carry residual stress"),
         note="Acrylic burns: never leave the laser unattended.",
+        modulus_MPa=3000.0,
+        modulus_source=(
+            "manufacturers' data sheets for cast PMMA, flexural modulus to ISO 178: about 3000 to 3300 N/mm2 "
+            "(from memory; the lower figure)"),
     ),
 }
 
