@@ -9,6 +9,7 @@ from dataclasses import dataclass, field
 
 from sheetgen.numbers import sig
 from sheetgen.model3d.bodies import SHARED_VOLUME_TOL_MM3
+from sheetgen.model3d.pairs import PairGap
 
 
 
@@ -118,6 +119,8 @@ class AssemblyReport:
     mass: MassCheck
     timing_s: tuple[tuple[str, float], ...] = field(default=())
     occ_calls: int = 0  # OpenCascade booleans and distances the checks needed
+    pair_gaps: tuple[PairGap, ...] = ()  # all-pairs check: each subject's nearest solid it must clear
+    pair_faults: tuple[PairGap, ...] = ()  # ... and every promised gap not kept (sheetgen.model3d.pairs)
 
     @property
     def running_parts(self) -> tuple[str, ...]:
@@ -156,7 +159,7 @@ class AssemblyReport:
     def ok(self) -> bool:
         return (not self.interference and not self.floating_parts and not self.detached_parts and self.tabs_ok
                 and not self.collisions and not self.touching and self.min_clearance_mm > 0
-                and self.frame_clearance_ok and self.mesh_ok and self.mass.ok)
+                and self.frame_clearance_ok and self.mesh_ok and self.mass.ok and not self.pair_faults)
 
     def to_json(self) -> dict:
         m = self.mass
@@ -206,6 +209,8 @@ class AssemblyReport:
             "kit_cg_mm": [sig(v) for v in m.kit_cg_mm],
             "timing_s": {k: round(v, 3) for k, v in self.timing_s},
             "occ_calls": self.occ_calls,
+            "all_pairs": {"ok": not self.pair_faults, "nearest": [g.to_json() for g in self.pair_gaps],
+                          "faults": [g.to_json() for g in self.pair_faults]},
         }
 
 
