@@ -161,7 +161,7 @@ def compute_layout(spec, centre_distance_mm: float) -> Layout:
             f"axle.height = {H:g}: the motor body would reach the base; must be at least "
             f"{math.ceil(floor * 10) / 10:g} mm (or turn the pinion with drive.pinion_angle)")
     web = motor_web_mm(t)
-    half_w = spec.motor.body_width_mm / 2 + 2 * web + t
+    half_w = mount_half_width_mm(spec, t, web, H + pinion_z)
     clamp_x = mount_x + spec.motor.body_length_mm
     base_half_y = max(support_half_y, abs(pinion_y) + half_w) + 10.0
     base_x0 = -(support_x + 2 * t) - 10.0
@@ -196,6 +196,33 @@ def motor_web_mm(t_mm: float) -> float:
     """Material left between the motor's body opening and a brace slot (and outside
     the slot) in the mount and clamp plates; also the braces' gap to the body."""
     return max(MOTOR_WEB_MIN_MM, MOTOR_WEB_SHEETS * t_mm)
+
+
+MOUNT_WIDEN_MAX_MM = 40.0  # the mount plates grow at most this much per side for stiffness (our rule)
+MOUNT_WIDTH_STEP_MM = 0.5
+
+
+def mount_half_width_mm(spec, t_mm: float, web_mm: float, lever_mm: float) -> float:
+    """Half width of the mount and clamp plates about the pinion axis: the body, a web,
+    the brace slot and a web each side, widened (up to MOUNT_WIDEN_MAX_MM) until the
+    mount's stiffness check passes (sheetgen.mechanics.mount: the plate as a cantilever of
+    length ``lever_mm``, delta = F L^3 / 3 E I within a share of the backlash, its least
+    section the two strips beside the body opening, less the brace slots):
+    I = (2 t / 3) [(w^3 - (a + t)^3) + (a^3 - b^3)], a = b + web, b = half the body width."""
+    from sheetgen.mechanics.materials import sheet_material
+    from sheetgen.mechanics.mount import MOUNT_BACKLASH_SHARE, worst_tooth_force_N
+
+    b = spec.motor.body_width_mm / 2
+    a = b + web_mm
+    least = a + t_mm + web_mm
+    limit = MOUNT_BACKLASH_SHARE * spec.drive.backlash_mm
+    e = sheet_material(spec.sheet.material).modulus_MPa
+    if limit <= 0 or e <= 0 or lever_mm <= 0:
+        return least
+    need_i = worst_tooth_force_N(spec) * lever_mm ** 3 / (3.0 * e * limit)
+    w3 = need_i * 3.0 / (2.0 * t_mm) + (a + t_mm) ** 3 - a ** 3 + b ** 3
+    w = math.ceil(w3 ** (1.0 / 3.0) / MOUNT_WIDTH_STEP_MM - 1e-9) * MOUNT_WIDTH_STEP_MM
+    return min(max(least, w), least + MOUNT_WIDEN_MAX_MM)
 
 
 def motor_floor_height_mm(spec, centre_distance_mm: float) -> float:

@@ -71,6 +71,14 @@ class MountStiffness:
                 "backlash_share_allowed": MOUNT_BACKLASH_SHARE, "ok": self.ok}
 
 
+def worst_tooth_force_N(spec) -> float:
+    """The stalled motor's tooth force on the pinion, tangential and radial together:
+    F_t / cos(alpha) with F_t = T_stall / (m z / 2)."""
+    d = spec.drive
+    ft = spec.motor.stall_torque_Nm / (d.module_mm * d.pinion_teeth / 2.0 * 1e-3)
+    return ft / math.cos(math.radians(d.pressure_angle_deg))
+
+
 def section_second_moment_mm4(outline: Polygon, v: float, thickness_mm: float) -> float:
     """Second moment of area, for bending in the plate's plane, of the plate's
     section along the line local y = v: the material segments of that line, each

@@ -24,6 +24,7 @@ from dataclasses import dataclass
 from typing import Any
 
 import numpy as np
+import shapely
 from shapely import affinity
 
 from sheetgen.design.kit import MESHING, MOTOR_GAP_MM, MOTOR_HOLDERS
@@ -105,16 +106,17 @@ def _distance(sub: _Subject, sub_shell, body: Body, angle: float, shells: _Shell
     return best
 
 
-def _bound(sub: _Subject, body: Body, angle: float) -> float:
-    """hypot(x gap, y-z projection distance): a lower bound of the 3D distance."""
-    proj = sub.prism.yz_projection()
+def _bounds(sub: _Subject, body: Body, angles: list[float], turned_sub: np.ndarray) -> np.ndarray:
+    """hypot(x gap, y-z projection distance) at each frame angle: a lower bound of the
+    3D distance (turning the body by a is turning the subject by -a, seen along x)."""
     r0 = sub.prism.x_range_mm()
-    best = math.inf
+    best = np.full(len(angles), np.inf)
     for p in body.pieces:
         q = p.yz_projection()
-        if body.rotating and angle:
-            q = affinity.rotate(q, angle, origin=(0.0, 0.0))
-        best = min(best, math.hypot(_x_gap(r0, p.x_range_mm()), float(proj.distance(q))))
+        gap = _x_gap(r0, p.x_range_mm())
+        d = shapely.distance(turned_sub, q) if body.rotating else \
+            np.full(len(angles), float(sub.prism.yz_projection().distance(q)))
+        best = np.minimum(best, np.hypot(gap, d))
     return best
 
 
@@ -169,11 +171,16 @@ def all_pairs(kit: Kit, model: Model, angles: np.ndarray) -> tuple[list[PairGap]
             return cache[0]
 
         entries = []  # (lower bound, body index, frame angle)
+        proj = sub.prism.yz_projection()
+        turned_sub = np.array([affinity.rotate(proj, -a, origin=(0.0, 0.0)) for a in turning_angles], dtype=object)
         for bi, b in enumerate(bodies):
             if b.name == sub.body or b.source in sub.exempt or b.name in sub.exempt:
                 continue
-            for a in (turning_angles if b.rotating else [0.0]):
-                entries.append((_bound(sub, b, a), bi, a))
+            if b.rotating:
+                lb = _bounds(sub, b, turning_angles, turned_sub)
+                entries += [(float(v), bi, a) for v, a in zip(lb, turning_angles)]
+            else:
+                entries.append((float(_bounds(sub, b, [0.0], turned_sub[:1])[0]), bi, 0.0))
         entries.sort(key=lambda e: (round(e[0], 9), e[1], e[2]))
         best: PairGap | None = None
         faulted: set[int] = set()
@@ -198,21 +205,21 @@ def all_pairs(kit: Kit, model: Model, angles: np.ndarray) -> tuple[list[PairGap]
 
     joined = {(j.tab_part, j.slot_part) for j in kit.joints} | {(j.slot_part, j.tab_part) for j in kit.joints}
     fixed = [b for b in bodies if not b.rotating and b.name != MOTOR and b.source not in {p for _, p in MESHING}]
-    for i, a in enumerate(fixed):
-        for b in fixed[i + 1:]:
-            if (a.source, b.source) in joined or _aabb_gap(boxes[a.name], boxes[b.name]) > CONTACT_TOL_MM:
+    for i, fa in enumerate(fixed):
+        for fb in fixed[i + 1:]:
+            if (fa.source, fb.source) in joined or _aabb_gap(boxes[fa.name], boxes[fb.name]) > CONTACT_TOL_MM:
                 continue
             d = math.inf
-            for ka, pa in enumerate(a.pieces):
-                for kb, pb in enumerate(b.pieces):
+            for ka, pa in enumerate(fa.pieces):
+                for kb, pb in enumerate(fb.pieces):
                     e = parallel_distance_mm(pa, pb)
                     if e is None:
                         from sheetgen.model3d.solids import _occ_distance
 
                         shells.occ_calls += 1
-                        e = _occ_distance(shells.piece(a, ka, 0.0), shells.piece(b, kb, 0.0))
+                        e = _occ_distance(shells.piece(fa, ka, 0.0), shells.piece(fb, kb, 0.0))
                     d = min(d, e)
             if d <= CONTACT_TOL_MM:
-                faults.append(PairGap(a.name, b.name, d, CONTACT_TOL_MM, 0.0,
+                faults.append(PairGap(fa.name, fb.name, d, CONTACT_TOL_MM, 0.0,
                                       "two fixed parts touch only where a joint joins them"))
     return nearest, faults, shells.occ_calls
