@@ -441,9 +441,10 @@ def test_a_long_motor_shaft_moves_the_wheel_out_and_clears(demo_spec, length):
 
 
 def test_a_pinned_motor_place_that_reaches_the_support_is_refused():
-    # by hand: mount 3 + gap 1 + pinion 3 + one 3 mm spacer, less the 1 mm kept from the support = 9 mm
+    # by hand: gap 1 + pinion 3 + one 3 mm spacer, less the 1 mm kept from the support = 6 mm
+    # (the motor's face is flush with its mount plate: no plate in the shaft's way)
     with pytest.raises(ParameterError, match=r"^motor\.shaft_length = 14: would reach within 1 mm of the "
-                                             r"drive-side axle support .* must be at most 9 mm"):
+                                             r"drive-side axle support .* must be at most 6 mm"):
         build_kit(load_spec(DEMO, ["motor.shaft_length=14", "drive.wheel_spacers=1", "drive.mount_gap=1"]))
 
 
