@@ -198,13 +198,15 @@ def motor_web_mm(t_mm: float) -> float:
     return max(MOTOR_WEB_MIN_MM, MOTOR_WEB_SHEETS * t_mm)
 
 
-MOUNT_WIDEN_MAX_MM = 40.0  # the mount plates grow at most this much per side for stiffness (our rule)
+MOUNT_WIDEN_MAX_MM = 40.0  # the mount plates grow for stiffness by at most this much per side ...
+MOUNT_WIDEN_MAX_BODIES = 2.0  # ... or this many body widths, whichever is more (our rule)
 MOUNT_WIDTH_STEP_MM = 0.5
 
 
 def mount_half_width_mm(spec, t_mm: float, web_mm: float, lever_mm: float) -> float:
     """Half width of the mount and clamp plates about the pinion axis: the body, a web,
-    the brace slot and a web each side, widened (up to MOUNT_WIDEN_MAX_MM) until the
+    the brace slot and a web each side, widened (up to MOUNT_WIDEN_MAX_MM or
+    MOUNT_WIDEN_MAX_BODIES body widths a side, whichever is more) until the
     mount's stiffness check passes (sheetgen.mechanics.mount: the plate as a cantilever of
     length ``lever_mm``, delta = F L^3 / 3 E I within a share of the backlash, its least
     section the two strips beside the body opening, less the brace slots):
@@ -222,7 +224,7 @@ def mount_half_width_mm(spec, t_mm: float, web_mm: float, lever_mm: float) -> fl
     need_i = worst_tooth_force_N(spec) * lever_mm ** 3 / (3.0 * e * limit)
     w3 = need_i * 3.0 / (2.0 * t_mm) + (a + t_mm) ** 3 - a ** 3 + b ** 3
     w = math.ceil(w3 ** (1.0 / 3.0) / MOUNT_WIDTH_STEP_MM - 1e-9) * MOUNT_WIDTH_STEP_MM
-    return min(max(least, w), least + MOUNT_WIDEN_MAX_MM)
+    return min(max(least, w), least + max(MOUNT_WIDEN_MAX_MM, MOUNT_WIDEN_MAX_BODIES * spec.motor.body_width_mm))
 
 
 def motor_floor_height_mm(spec, centre_distance_mm: float) -> float:
