@@ -80,18 +80,19 @@ def motor_clamp(spec, L: Layout, drive) -> Blank:
 
 def motor_brace(spec, L: Layout, drive) -> Blank:
     """Two side plates along the motor, joining the mount and the clamp (end tabs) and the base."""
-    x0, x1 = L.mount_x_mm + L.t_mm, L.clamp_x_mm
+    x0 = L.mount_x_mm + L.t_mm  # the brace's local origin (its outline does not move with the drive's place)
+    n = L.clamp_x_mm - x0
     H = L.axle_height_mm
     top = L.pinion_z_mm + spec.motor.body_height_mm / 2
     t = L.t_mm
     return Blank(
         name="motor-brace",
-        outline=rect(x0, -H, x1, top),
-        placements=tuple(place(X, Z, (0.0, L.pinion_y_mm + s * L.brace_y_mm + t / 2, 0.0)) for s in (-1, 1)),
+        outline=rect(0.0, -H, n, top),
+        placements=tuple(place(X, Z, (x0, L.pinion_y_mm + s * L.brace_y_mm + t / 2, 0.0)) for s in (-1, 1)),
         description="side plate of the motor box; its tabs pass the front and back plates and the base",
         edges=(
-            ("bottom", Edge((x0, -H), (x1, -H), -1)),
-            ("end+", Edge((x1, -H), (x1, top), -1)),
-            ("end-", Edge((x0, -H), (x0, top), +1)),
+            ("bottom", Edge((0.0, -H), (n, -H), -1)),
+            ("end+", Edge((n, -H), (n, top), -1)),
+            ("end-", Edge((0.0, -H), (0.0, top), +1)),
         ),
     )
