@@ -162,7 +162,9 @@ def compute_layout(spec, centre_distance_mm: float) -> Layout:
             f"{math.ceil(floor * 10) / 10:g} mm (or turn the pinion with drive.pinion_angle)")
     web = motor_web_mm(t)
     half_w = mount_half_width_mm(spec, t, web, H + pinion_z)
-    clamp_x = mount_x + spec.motor.body_length_mm
+    # the back plate at the motor's rear end; a motor shorter than two sheets leaves it a sheet's
+    # room behind the mount plate for the braces (the body is then held by the mount's grip alone)
+    clamp_x = mount_x + max(spec.motor.body_length_mm, 2 * t)
     base_half_y = max(support_half_y, abs(pinion_y) + half_w) + 10.0
     base_x0 = -(support_x + 2 * t) - 10.0
     base_x1 = clamp_x + t + 10.0
