@@ -362,11 +362,16 @@ def test_a_lifted_bezel_floats_and_a_motor_off_its_mount_is_cut_off(demo_spec, d
     lifted = build_model(_moved(demo_kit, "bezel", dz=2.0), demo_spec)
     floating, detached = find_floating(lifted, reach)
     assert floating == ["bezel#1"] and detached == []
-    # the motor pulled 3 mm off its mount still carries the pinion on its shaft: the two hang
+    # the motor with its box of plates left out still carries the pinion on its shaft: the two hang
     # together, apart from the kit (with a backlash whose flank gap, 0.14 mm, is wider than the
     # axle's running clearance, the mesh does not count as a contact either)
+    import dataclasses
+
     spec = load_spec(DEMO, ["drive.backlash=0.3"])
-    off = build_model(_moved(build_kit(spec), "", comp_name="motor", dx=3.0), spec)
+    kit = build_kit(spec)
+    unheld = dataclasses.replace(kit, parts=tuple(p for p in kit.parts
+                                                  if p.name not in ("motor-mount", "motor-clamp", "motor-brace")))
+    off = build_model(unheld, spec)
     floating, detached = find_floating(off, reach)
     pinions = [f"pinion#{i + 1}" for i in range(spec.drive.layers)]  # one per drive layer
     assert floating == [] and sorted(detached) == ["motor", *pinions]
@@ -443,9 +448,10 @@ def test_a_long_motor_shaft_moves_the_wheel_out_and_clears(demo_spec, length):
 
 
 def test_a_pinned_motor_place_that_reaches_the_support_is_refused():
-    # by hand: mount 3 + gap 1 + pinion 3 + one 3 mm spacer, less the 1 mm kept from the support = 9 mm
+    # by hand: gap 1 + pinion 3 + one 3 mm spacer, less the 1 mm kept from the support = 6 mm
+    # (the motor's face is flush with its mount plate: no plate in the shaft's way)
     with pytest.raises(ParameterError, match=r"^motor\.shaft_length = 14: would reach within 1 mm of the "
-                                             r"drive-side axle support .* must be at most 9 mm"):
+                                             r"drive-side axle support .* must be at most 6 mm"):
         build_kit(load_spec(DEMO, ["motor.shaft_length=14", "drive.wheel_spacers=1", "drive.mount_gap=1"]))
 
 

@@ -166,30 +166,33 @@ def test_layers_carry_the_tooth_load():
     assert report.tooth.stall_stress_MPa == pytest.approx(stress(hand, stall_N), rel=1e-6)
 
 
-@pytest.mark.parametrize("shaft, spacers, gap", [(10.0, 1, 2.0), (20.0, 4, 3.0), (6.0, 1, 1.0)])
+@pytest.mark.parametrize("shaft, spacers, gap", [(10.0, 2, 2.0), (20.0, 5, 3.0), (3.0, 1, 1.0)])
 def test_motor_place_by_hand(shaft, spacers, gap):
-    # 3 mm sheet, one gear layer (our rule): the shaft passes the 3 mm mount and a gap of at least
-    # 1 mm, then the 3 mm pinion; what is left runs on toward the support past n spacers of 3 mm,
-    # stopping 1 mm short of it; the mount gap grows only by what n spacers cannot take, and no
-    # more than one sheet before a spacer is added.
-    # 10 mm: 3 left over, one spacer takes 3 - 1 = 2, gap 1 + 1 = 2.
-    # 20 mm: 13 left over; n = 4 takes 11, gap 1 + 2 = 3 (n = 3 would need a gap of 6 > 1 + 3).
-    # 6 mm: ends 1 mm inside the pinion (grips 2 mm of 3: at least max(2, 1.5) mm).
+    # 3 mm sheet, one gear layer (our rule): the motor's body is clamped in its box of plates, its
+    # face flush with the mount plate, so the shaft crosses a gap of at least 1 mm, then the 3 mm
+    # pinion; what is left runs on toward the support past n spacers of 3 mm, stopping 1 mm short
+    # of it; the gap grows only by what n spacers cannot take, and no more than one sheet before a
+    # spacer is added.
+    # 10 mm: 6 left over; n = 1 takes 2 (gap 5 > 1 + 3), n = 2 takes 5, gap 1 + 1 = 2.
+    # 20 mm: 16 left over; n = 5 takes 14, gap 1 + 2 = 3 (n = 4 would need a gap of 6 > 1 + 3).
+    # 3 mm: ends 1 mm inside the pinion (grips 2 mm of 3: at least max(2, 1.5) mm), 1 + 3 mm
+    # short of the support.
     spec = load_spec(DEMO, [f"motor.shaft_length={shaft}", "drive.module=1.5", "drive.layers=1"])
     assert (spec.drive.wheel_spacers, spec.drive.mount_gap_mm) == (spacers, gap)
     kit = build_kit(spec)
     figures = dict(kit.figures)
-    assert figures["shaft_end_gap_mm"] == pytest.approx(1.0 if shaft > 6 else 3.0 + 1.0)  # one spacer + 1 mm inside
+    assert figures["shaft_end_gap_mm"] == pytest.approx(1.0 if shaft > 4 else 3.0 + 1.0)
     outboard = [pl for pl in kit.part("spacer").placements
                 if pl.translation_mm[0] > figures["support_spacing_mm"] / 2]
     assert len(outboard) == spacers
 
 
 def test_a_shaft_too_short_is_refused_with_the_least_that_builds():
-    with pytest.raises(ParameterError, match=r"^motor\.shaft_length = 5 mm is too short .* the least "
-                                             r"motor\.shaft_length that builds is 6 mm$"):
-        load_spec(DEMO, ["motor.shaft_length=5", "drive.module=1.5", "drive.layers=1"])
-    assert load_spec(DEMO, ["motor.shaft_length=6"]).motor.shaft_length_mm == 6
+    # by hand: a 1 mm gap and a grip of max(2 mm, half the 3 mm sheet) = 3 mm
+    with pytest.raises(ParameterError, match=r"^motor\.shaft_length = 2 mm is too short .* the least "
+                                             r"motor\.shaft_length that builds is 3 mm$"):
+        load_spec(DEMO, ["motor.shaft_length=2", "drive.module=1.5", "drive.layers=1"])
+    assert load_spec(DEMO, ["motor.shaft_length=3"]).motor.shaft_length_mm == 3
 
 
 def _centre_distance_by_hand(m, z1, z2, x1, x2):

@@ -38,7 +38,7 @@ def test_every_part_instance_is_placed_once(demo_kit):
 # the drive and the stand pinned at the demo's derived values, so a panel change shows only
 # what follows from the panel itself (with them at "auto" the drive follows the load too)
 PINNED = ["axle.height=100", "drive.module=1.5", "drive.pinion_teeth=12", "drive.pinion_shift=0.3",
-          "drive.wheel_teeth=70", "drive.layers=1", "drive.wheel_spacers=1", "drive.mount_gap=2", "frame.border=8"]
+          "drive.wheel_teeth=70", "drive.layers=1", "drive.wheel_spacers=2", "drive.mount_gap=2", "frame.border=8"]
 
 
 def test_panel_width_change_flows_to_the_frame_and_nothing_else():
@@ -57,7 +57,7 @@ def test_panel_height_change_flows_to_the_frame_and_ribs():
     b = _outlines(build_kit(load_spec(DEMO, PINNED + ["panel.height=120"])))
     changed = {n for n in a if not a[n].equals_exact(b[n], 1e-9)}
     assert FRAME | {"rib"} <= changed
-    assert not changed & {"wheel", "pinion", "collar", "spacer", "motor-mount"}
+    assert not changed & {"wheel", "pinion", "collar", "spacer", "motor-mount", "motor-clamp", "motor-brace"}
     for n in FRAME:
         assert (b[n].bounds[3] - b[n].bounds[1]) - (a[n].bounds[3] - a[n].bounds[1]) == pytest.approx(10)
 

@@ -114,6 +114,12 @@ def render_text(report, out_dir: str, written_s: float, total_s: float, import_s
                      f"worst {c.worst_volume_mm3:.1f} mm3 shared at {_deg(c.worst_deg)}")
     for t in r.touching:
         lines.append(f"    touching: {t.turning} rubs {t.fixed} from {_deg(t.first_deg)} to {_deg(t.last_deg)}")
+    for g in r.pair_gaps:
+        lines.append(f"  {g.subject}: nearest {g.other} {g.distance_mm:.3f} mm"
+                     + (f" at {_deg(g.angle_deg)}" if g.angle_deg else "") + f" (at least {g.required_mm:g} mm)")
+    for g in r.pair_faults:
+        lines.append(f"    GAP NOT KEPT: {g.subject} and {g.other} {g.distance_mm:.3f} mm apart "
+                     f"(at least {g.required_mm:g} mm: {g.rule})")
     if r.closest and not r.collisions:
         c = r.closest[0]
         how = " (a gap along the axle)" if c.x_gap_mm > 0 and abs(c.distance_mm - c.x_gap_mm) < 1e-6 else ""

@@ -33,6 +33,10 @@ JOINTS = (
     ("stretcher", "end+", "axle-support"),
     ("stretcher", "end-", "axle-support"),
     ("motor-mount", "foot", "base"),
+    ("motor-clamp", "foot", "base"),
+    ("motor-brace", "bottom", "base"),
+    ("motor-brace", "end-", "motor-mount"),
+    ("motor-brace", "end+", "motor-clamp"),
     ("rib", "top", "tray"),
     ("end-stop", "foot", "base"),
     ("wedge", "top", "base"),
@@ -43,6 +47,10 @@ MESHING = frozenset({("wheel", "pinion")})
 # Turning and fixed parts meant to meet at the ends of the travel, and only there (the end stops:
 # sheetgen/design/parts/stops.py); the clearance sweeps leave them out and model3d.stops checks them.
 STOPS = frozenset({("stop-arm", "end-stop")})
+# The parts that hold the motor body (they may touch it); every other part keeps MOTOR_GAP_MM off the
+# motor and its shaft, and the spinning shaft touches nothing but the pinion (sheetgen.model3d checks it).
+MOTOR_HOLDERS = frozenset({"motor-mount", "motor-clamp"})
+MOTOR_GAP_MM = 1.0  # our rule: the same least gap as SHAFT_END_GAP_MM and MOUNT_GAP_MM in layout.py
 LABEL_MAX_MM = 4.0
 LABEL_MIN_MM = 1.5
 
@@ -201,7 +209,7 @@ def _components(spec, L: Layout) -> tuple[Component, ...]:
                   ((L.axle_x0_mm + L.axle_x1_mm) / 2, 0.0, 0.0), (length, spec.axle.diameter_mm, spec.axle.diameter_mm),
                   rotating=True),
         Component("motor", m.mass_kg, "box",
-                  (L.mount_x_mm + L.t_mm + m.body_length_mm / 2, L.pinion_y_mm, L.pinion_z_mm),
+                  (L.mount_x_mm + m.body_length_mm / 2, L.pinion_y_mm, L.pinion_z_mm),
                   (m.body_length_mm, m.body_width_mm, m.body_height_mm), rotating=False),
     ]
     out += [Component(r.name, r.mass_kg, "point", r.position_mm, rotating=True) for r in spec.rotating_masses]

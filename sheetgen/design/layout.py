@@ -9,8 +9,12 @@ panel faces the zenith. Seen along +x the chassis stacks up as:
     the turning frame between the supports: two ribs on the axle, the tray on
       the ribs, the panel in the rim layer(s) on the tray, the bezel on top
     outboard of the +x support: drive.wheel_spacers spacers, the wheel
-      (drive.layers thick), a gap of drive.mount_gap, then the motor mount with
-      the motor behind it, its pinion meshing with the wheel
+      (drive.layers thick), a gap of drive.mount_gap, then the motor's face:
+      the motor body sits in a box of plates (motor-mount, a plate with a
+      body-shaped opening flush with the motor's face; motor-clamp, a back
+      plate the motor's rear end butts against; two motor-brace side plates
+      joining them, all standing in the base), so the motor's axial place is
+      free and its shaft reaches the pinion whatever its length
 
 All the numbers the part factories share are computed here, once, from a
 resolved Spec (every derived key a number: see sheetgen/design/solver/, which
@@ -97,6 +101,12 @@ class Layout:
     tilt_deg: float = 0.0  # the axle's angle to the ground (0: the base stands on the ground)
     wedge_foot_mm: float = 0.0  # the wedge's height at its low (-x) end
     wedge_y_mm: float = 0.0  # outer face of the +y wedge plate (the other at -y)
+    # the motor's box of plates (mount_x_mm is the motor's face and the mount plate's inner face)
+    clamp_x_mm: float = 0.0  # inner face of the back plate (the motor's rear end)
+    motor_web_mm: float = 0.0  # material between the body opening and a brace slot, and outside the slot
+    mount_half_w_mm: float = 0.0  # half width (kit y) of the mount and clamp plates about the pinion axis
+    mount_top_z_mm: float = 0.0  # top edge of the mount and clamp plates
+    brace_y_mm: float = 0.0  # centre planes of the braces at pinion_y -+ this
 
     @property
     def panel_z_mm(self) -> float:
@@ -153,20 +163,20 @@ def compute_layout(spec, centre_distance_mm: float) -> Layout:
     n_sp = spec.drive.wheel_spacers
     gap = spec.drive.mount_gap_mm
     wheel_x = support_x + t + n_sp * t  # support, then the spacer stack
-    mount_x = wheel_x + layers * t + gap
-    shaft_end = mount_x + t - spec.motor.shaft_length_mm
+    mount_x = wheel_x + layers * t + gap  # the motor's face, flush with the mount plate's inner face
+    shaft_end = mount_x - spec.motor.shaft_length_mm
     grip = pinion_grip_mm(t, layers)
     if shaft_end > wheel_x + layers * t - grip + 1e-9:
         raise ParameterError(
             f"motor.shaft_length = {spec.motor.shaft_length_mm:g}: grips only "
             f"{max(0.0, wheel_x + layers * t - shaft_end):.3g} mm of the pinion stack (at least {grip:g} mm); "
-            f"with drive.mount_gap = {gap:g} and drive.layers = {layers} it must be at least {t + gap + grip:g} mm "
+            f"with drive.mount_gap = {gap:g} it must be at least {gap + grip:g} mm "
             "(or leave drive.mount_gap at \"auto\")")
     if shaft_end < support_x + t + SHAFT_END_GAP_MM - 1e-9:
         raise ParameterError(
             f"motor.shaft_length = {spec.motor.shaft_length_mm:g}: would reach within {SHAFT_END_GAP_MM:g} mm of the "
             f"drive-side axle support with drive.wheel_spacers = {n_sp} and drive.mount_gap = {gap:g}; must be at "
-            f"most {mount_x - support_x - SHAFT_END_GAP_MM:g} mm (or leave those keys at \"auto\")")
+            f"most {mount_x - support_x - t - SHAFT_END_GAP_MM:g} mm (or leave those keys at \"auto\")")
     a = math.radians(spec.drive.pinion_angle_deg)
     pinion_y = centre_distance_mm * math.sin(a)
     pinion_z = -centre_distance_mm * math.cos(a)
@@ -175,10 +185,15 @@ def compute_layout(spec, centre_distance_mm: float) -> Layout:
         raise ParameterError(
             f"axle.height = {H:g}: the motor body would reach the base; must be at least "
             f"{math.ceil(floor * 10) / 10:g} mm (or turn the pinion with drive.pinion_angle)")
-    base_half_y = max(support_half_y, abs(pinion_y) + spec.motor.body_width_mm / 2 + 4.0) + 10.0
+    web = motor_web_mm(t)
+    half_w = mount_half_width_mm(spec, t, web, H + pinion_z)
+    # the back plate at the motor's rear end; a motor shorter than two sheets leaves it a sheet's
+    # room behind the mount plate for the braces (the body is then held by the mount's grip alone)
+    clamp_x = mount_x + max(spec.motor.body_length_mm, 2 * t)
+    base_half_y = max(support_half_y, abs(pinion_y) + half_w) + 10.0
     stop_x = -(support_x + 3 * t)  # outboard of the collar (which sits against the -x support)
     base_x0 = stop_x - STOP_BASE_END_MM
-    base_x1 = mount_x + t + spec.motor.body_length_mm + 5.0
+    base_x1 = clamp_x + t + 10.0
     stop = stop_geometry(spec, H, base_half_y)
     base_half_y = max(base_half_y, stop.need_base_half_y_mm)
     tilt = axle_tilt_deg(spec)
@@ -205,11 +220,51 @@ def compute_layout(spec, centre_distance_mm: float) -> Layout:
         stop_hub_r_mm=stop.hub_r_mm, stop_arm_r_mm=stop.arm_r_mm, stop_cut_r_mm=stop.cut_r_mm,
         stop_gap_mm=STOP_GAP_MM, stop_half_y_mm=stop.half_y_mm, stop_top_z_mm=stop.top_z_mm,
         tilt_deg=tilt, wedge_foot_mm=max(2 * t, 8.0) if tilt > 0 else 0.0, wedge_y_mm=wedge_y,
+        clamp_x_mm=clamp_x, motor_web_mm=web, mount_half_w_mm=half_w,
+        mount_top_z_mm=pinion_z + spec.motor.body_height_mm / 2 + max(MOTOR_BODY_MARGIN_MM, web),
+        brace_y_mm=spec.motor.body_width_mm / 2 + web + t / 2,
     )
 
 
 MOTOR_BODY_MARGIN_MM = 4.0  # mount plate material round the motor body
 MOTOR_BASE_GAP_MM = 1.0  # least gap, mount plate to the base under the motor
+MOTOR_WEB_MIN_MM = 2.0  # least web between two cuts of a motor plate ...
+MOTOR_WEB_SHEETS = 0.5  # ... and at least this share of the sheet (common practice: a web of half the stock)
+
+
+def motor_web_mm(t_mm: float) -> float:
+    """Material left between the motor's body opening and a brace slot (and outside
+    the slot) in the mount and clamp plates; also the braces' gap to the body."""
+    return max(MOTOR_WEB_MIN_MM, MOTOR_WEB_SHEETS * t_mm)
+
+
+MOUNT_WIDEN_MAX_MM = 40.0  # the mount plates grow for stiffness by at most this much per side ...
+MOUNT_WIDEN_MAX_BODIES = 2.0  # ... or this many body widths, whichever is more (our rule)
+MOUNT_WIDTH_STEP_MM = 0.5
+
+
+def mount_half_width_mm(spec, t_mm: float, web_mm: float, lever_mm: float) -> float:
+    """Half width of the mount and clamp plates about the pinion axis: the body, a web,
+    the brace slot and a web each side, widened (up to MOUNT_WIDEN_MAX_MM or
+    MOUNT_WIDEN_MAX_BODIES body widths a side, whichever is more) until the
+    mount's stiffness check passes (sheetgen.mechanics.mount: the plate as a cantilever of
+    length ``lever_mm``, delta = F L^3 / 3 E I within a share of the backlash, its least
+    section the two strips beside the body opening, less the brace slots):
+    I = (2 t / 3) [(w^3 - (a + t)^3) + (a^3 - b^3)], a = b + web, b = half the body width."""
+    from sheetgen.mechanics.materials import sheet_material
+    from sheetgen.mechanics.mount import MOUNT_BACKLASH_SHARE, worst_tooth_force_N
+
+    b = spec.motor.body_width_mm / 2
+    a = b + web_mm
+    least = a + t_mm + web_mm
+    limit = MOUNT_BACKLASH_SHARE * spec.drive.backlash_mm
+    e = sheet_material(spec.sheet.material).modulus_MPa
+    if limit <= 0 or e <= 0 or lever_mm <= 0:
+        return least
+    need_i = worst_tooth_force_N(spec) * lever_mm ** 3 / (3.0 * e * limit)
+    w3 = need_i * 3.0 / (2.0 * t_mm) + (a + t_mm) ** 3 - a ** 3 + b ** 3
+    w = math.ceil(w3 ** (1.0 / 3.0) / MOUNT_WIDTH_STEP_MM - 1e-9) * MOUNT_WIDTH_STEP_MM
+    return min(max(least, w), least + max(MOUNT_WIDEN_MAX_MM, MOUNT_WIDEN_MAX_BODIES * spec.motor.body_width_mm))
 
 
 def motor_floor_height_mm(spec, centre_distance_mm: float) -> float:
@@ -217,7 +272,8 @@ def motor_floor_height_mm(spec, centre_distance_mm: float) -> float:
     clear of the base: the pinion sits centre_distance from the axle, toward
     drive.pinion_angle from straight down."""
     pinion_z = -centre_distance_mm * math.cos(math.radians(spec.drive.pinion_angle_deg))
-    return -(pinion_z - spec.motor.body_height_mm / 2 - MOTOR_BODY_MARGIN_MM) + MOTOR_BASE_GAP_MM
+    margin = max(MOTOR_BODY_MARGIN_MM, motor_web_mm(spec.sheet.thickness_mm))
+    return -(pinion_z - spec.motor.body_height_mm / 2 - margin) + MOTOR_BASE_GAP_MM
 
 
 # ---------------------------------------------------------------------------

@@ -15,6 +15,7 @@ from sheetgen.mechanics.tracking import YearTracking
 from sheetgen.mechanics.massprops import Counterweight, MassProperties
 from sheetgen.mechanics.load_geometry import WindPlate
 from sheetgen.mechanics.stops import StopFigures
+from sheetgen.mechanics.mount import MountStiffness
 
 
 CAUTIONS = (
@@ -65,6 +66,7 @@ class BalanceReport:
     pulse_capacitance_uF: float = 0.0
     pulse_voltage_V: float = 0.0
     stops: StopFigures | None = None  # the end stops at the stall (None: a kit without them)
+    mount: MountStiffness | None = None  # the motor mount's give at the pinion (sheetgen.mechanics.mount)
 
     @property
     def ok(self) -> bool:
@@ -121,6 +123,7 @@ class BalanceReport:
             },
             "ballast_kg": sig(self.tipping.ballast_kg),
             "checks": [c.to_json() for c in self.checks],
+            "motor_mount": None if self.mount is None else self.mount.to_json(),
             "total_mass_kg": sig(m.total_mass_kg),
             "kit_cg_mm": [sig(v) for v in m.total_cg_mm],
             "tracking": {

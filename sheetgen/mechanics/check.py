@@ -31,6 +31,7 @@ from sheetgen.mechanics.balance_report import BalanceReport, Check
 from sheetgen.mechanics.load_geometry import ground_contact, to_ground_frame
 from sheetgen.mechanics.load_torque import axle_load
 from sheetgen.mechanics.stops import STOP_BEARING_SAFETY, StopFigures, stop_figures
+from sheetgen.mechanics.mount import MOUNT_BACKLASH_SHARE, MountStiffness, mount_stiffness
 
 
 def balance_check(kit: Kit, spec) -> BalanceReport:
@@ -137,6 +138,9 @@ def balance_check(kit: Kit, spec) -> BalanceReport:
                  "own rotor inertia is not known and left out")
     notes.extend(year.warnings)
     checks = _checks(spec, mp, tr, g_max, load, df, dtm, year, tooth, tipping, cw, mat.name, stops)
+    mount = mount_stiffness(kit, spec)
+    if mount is not None:
+        checks.append(_mount_check(mount, mat.name))
     if tr.clipped:
         notes.append(f"the sun's path needs +-{tr.sunset_rotation_deg:.1f} deg; site.travel_limit = "
                      f"{tr.travel_limit_deg:g} deg follows it for {tr.tracked_hours_h:.1f} of "
@@ -150,6 +154,7 @@ def balance_check(kit: Kit, spec) -> BalanceReport:
         counterweight=cw, checks=tuple(checks), material=spec.sheet.material, notes=tuple(notes),
         pulse_capacitance_uF=drive.pulse_capacitance_uF, pulse_voltage_V=drive.pulse_voltage_V,
         stops=stops,
+        mount=mount,
     )
 
 
@@ -228,6 +233,17 @@ def _checks(spec, mp, tr, g_max, load, df, dtm, year, tooth, tipping, cw, materi
            f"or add {tipping.ballast_kg:.2f} kg ballast at its middle"),
         binding=False))
     return out
+
+
+def _mount_check(m: MountStiffness, material_name: str) -> Check:
+    """The motor mount's give at the pinion under the stalled motor's tooth force (sheetgen.mechanics.mount)."""
+    text = (f"the motor-mount plate gives {m.deflection_mm * 1000:.3g} µm at the pinion under the stalled motor's "
+            f"tooth force {m.force_N:.3g} N (cantilever {m.lever_mm:.3g} mm from the base, least I "
+            f"{m.second_moment_mm4:.4g} mm4, {material_name} E {m.modulus_MPa:g} MPa: delta = F L^3 / 3 E I, Roark); "
+            f"allowed {MOUNT_BACKLASH_SHARE:g} x drive.backlash = {m.limit_mm * 1000:.3g} µm")
+    if not m.ok:
+        text += "; a stiffer sheet, a thicker sheet, a lower motor (drive.pinion_angle) or more drive.backlash"
+    return Check("motor mount stiffness", m.ok, m.deflection_mm, m.limit_mm, "mm", text)
 
 
 def _pos(p) -> str:

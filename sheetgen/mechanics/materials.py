@@ -35,6 +35,8 @@ class SheetMaterial:
     # edge bearing: compressive strength in the sheet's plane, for a stop pressing on the cut edge
     bearing_strength_MPa: float = 0.0
     bearing_strength_source: str = ""
+    modulus_MPa: float = 0.0  # modulus of elasticity in bending, taken low (the mount's stiffness check)
+    modulus_source: str = ""
 
 
 @dataclass(frozen=True)
@@ -63,6 +65,10 @@ SHEET_MATERIALS: dict[str, SheetMaterial] = {
         bearing_strength_source=(
             "from memory: compressive strength of MDF in the plane of the board, taken low (about 12 N/mm2; "
             "the core is less dense than the faces); verify with the board maker's data sheet"),
+        modulus_MPa=2500.0,
+        modulus_source=(
+            "EN 622-5:2009, general-purpose MDF: modulus of elasticity in bending at least about 2500 N/mm2 "
+            "for thin boards (from memory; a board acceptance minimum, taken as the design value)"),
     ),
     "birch_plywood": SheetMaterial(
         key="birch_plywood",
@@ -79,6 +85,10 @@ SHEET_MATERIALS: dict[str, SheetMaterial] = {
         bearing_strength_source=(
             "from memory: compressive strength of thin birch plywood in its plane, across its weaker direction, "
             "taken low (about half of clear birch's compression parallel to the grain); verify with the supplier"),
+        modulus_MPa=4000.0,
+        modulus_source=(
+            "from memory: bending modulus of thin 3-ply birch plywood across its weaker direction, taken "
+            "low (clear birch is near 14000 N/mm2 along the grain); verify with the supplier's data sheet"),
     ),
     "cast_acrylic": SheetMaterial(
         key="cast_acrylic",
@@ -95,6 +105,10 @@ SHEET_MATERIALS: dict[str, SheetMaterial] = {
         bearing_strength_source=(
             "manufacturers' data sheets for cast PMMA, compressive strength to ISO 604: about 100 to 120 MPa "
             "(from memory; the lower end taken)"),
+        modulus_MPa=3000.0,
+        modulus_source=(
+            "manufacturers' data sheets for cast PMMA, flexural modulus to ISO 178: about 3000 to 3300 N/mm2 "
+            "(from memory; the lower figure)"),
     ),
 }
 

@@ -17,6 +17,7 @@ from sheetgen.model3d.measures import _Measures
 from sheetgen.model3d.records import AssemblyReport, Interference, MassCheck, MeshCheck, SolidInfo, TabCheck
 from sheetgen.model3d.solids import Model, _occ_common_mm3, _volume_and_centre, build_model, prism_solid
 from sheetgen.model3d.sweep import _sweep
+from sheetgen.model3d.pairs import all_pairs
 
 
 
@@ -217,6 +218,8 @@ def check_model(model: Model, kit: Kit, spec, step_deg: float = SWEEP_STEP_DEG) 
 
     stops = check_stops(model, spec, meas)
     lap("stops")
+    gaps, gap_faults, pair_occ = all_pairs(kit, model, angles)
+    lap("all pairs")
     timing.insert(0, ("build", model.build_s))
     return AssemblyReport(
         solids=tuple(infos), interference=tuple(interference), floating_parts=tuple(floating),
@@ -224,7 +227,8 @@ def check_model(model: Model, kit: Kit, spec, step_deg: float = SWEEP_STEP_DEG) 
         step_deg=float(angles[1] - angles[0]) if len(angles) > 1 else 0.0, angles=len(angles),
         running=tuple(running), closest=tuple(closest), frame_clearance=frame,
         frame_clearance_required_mm=spec.frame.clearance_mm, collisions=tuple(collisions),
-        touching=tuple(touching), mesh=tuple(mesh), mass=mass, timing_s=tuple(timing), occ_calls=meas.occ_calls,
+        touching=tuple(touching), mesh=tuple(mesh), mass=mass, timing_s=tuple(timing),
+        occ_calls=meas.occ_calls + pair_occ, pair_gaps=tuple(gaps), pair_faults=tuple(gap_faults),
         stops=tuple(stops),
     )
 

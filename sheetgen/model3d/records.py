@@ -9,6 +9,7 @@ from dataclasses import dataclass, field
 
 from sheetgen.numbers import sig
 from sheetgen.model3d.bodies import SHARED_VOLUME_TOL_MM3
+from sheetgen.model3d.pairs import PairGap
 
 
 
@@ -136,6 +137,8 @@ class AssemblyReport:
     timing_s: tuple[tuple[str, float], ...] = field(default=())
     occ_calls: int = 0  # OpenCascade booleans and distances the checks needed
     stops: tuple[StopCheck, ...] = ()  # the end stops meet at the travel limit (sheetgen.model3d.stops)
+    pair_gaps: tuple[PairGap, ...] = ()  # all-pairs check: each subject's nearest solid it must clear
+    pair_faults: tuple[PairGap, ...] = ()  # ... and every promised gap not kept (sheetgen.model3d.pairs)
 
     @property
     def running_parts(self) -> tuple[str, ...]:
@@ -174,7 +177,8 @@ class AssemblyReport:
     def ok(self) -> bool:
         return (not self.interference and not self.floating_parts and not self.detached_parts and self.tabs_ok
                 and not self.collisions and not self.touching and self.min_clearance_mm > 0
-                and self.frame_clearance_ok and self.mesh_ok and self.mass.ok and self.stops_ok)
+                and self.frame_clearance_ok and self.mesh_ok and self.mass.ok and self.stops_ok
+                and not self.pair_faults)
 
     @property
     def stops_ok(self) -> bool:
@@ -234,6 +238,8 @@ class AssemblyReport:
                        "inside_min_mm": sig(c.inside_min_mm), "inside_deg": sig(c.inside_deg),
                        "past_deg": sig(c.past_deg), "past_plus_mm3": sig(c.past_plus_mm3),
                        "past_minus_mm3": sig(c.past_minus_mm3), "ok": c.ok} for c in self.stops],
+            "all_pairs": {"ok": not self.pair_faults, "nearest": [g.to_json() for g in self.pair_gaps],
+                          "faults": [g.to_json() for g in self.pair_faults]},
         }
 
 

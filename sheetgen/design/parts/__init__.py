@@ -60,13 +60,15 @@ class Blank:
 
 def part_families():
     """The registered factories, in the order parts are listed."""
-    from sheetgen.design.parts import axle_hardware, drive, frame, stand, stops, wedge
+    from sheetgen.design.parts import axle_hardware, drive, frame, motor, stand, stops, wedge
 
     return (
         stand.base,
         stand.axle_support,
         stand.stretcher,
-        stand.motor_mount,
+        motor.motor_mount,
+        motor.motor_clamp,
+        motor.motor_brace,
         frame.tray,
         frame.rim,
         frame.bezel,

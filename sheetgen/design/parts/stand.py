@@ -1,17 +1,16 @@
-"""The fixed frame: base, axle supports, stretchers and the motor mount."""
+"""The fixed frame: base, axle supports and stretchers (the motor's box of plates is in motor.py)."""
 
 from __future__ import annotations
 
 from sheetgen.geometry.joints import Edge
 from sheetgen.geometry.shapes import disc, hull, rect
-from sheetgen.design.layout import ANCHOR_HOLE_MM, MOTOR_BODY_MARGIN_MM, Layout
+from sheetgen.design.layout import ANCHOR_HOLE_MM, Layout
 from sheetgen.geometry.placement import place
 from sheetgen.design.parts import Blank, round_hole
 
 X, Y, Z = (1.0, 0.0, 0.0), (0.0, 1.0, 0.0), (0.0, 0.0, 1.0)
 MINUS_Y = (0.0, -1.0, 0.0)
 ANCHOR_INSET_MM = 8.0
-SHAFT_CLEARANCE_MM = 1.0  # diametral, round a motor shaft passing through a plate
 
 
 def base(spec, L: Layout, drive) -> Blank:
@@ -60,30 +59,4 @@ def stretcher(spec, L: Layout, drive) -> Blank:
             ("end+", Edge((xs, -H), (xs, -H + h), -1)),
             ("end-", Edge((-xs, -H), (-xs, -H + h), +1)),
         ),
-    )
-
-
-def motor_mount(spec, L: Layout, drive) -> Blank:
-    """Holds the gear-motor with its shaft along -x through the plate, so the pinion meshes
-    with the wheel (local x = kit y, local y = kit z)."""
-    m = spec.motor
-    H, py, pz = L.axle_height_mm, L.pinion_y_mm, L.pinion_z_mm
-    half_w = m.body_width_mm / 2 + MOTOR_BODY_MARGIN_MM
-    half_h = m.body_height_mm / 2 + MOTOR_BODY_MARGIN_MM
-    if m.screw_spacing_mm:
-        half_w = max(half_w, m.screw_spacing_mm / 2 + m.screw_diameter_mm / 2 + 4.0)
-    foot_h = max(2 * L.t_mm, 8.0)
-    outline = hull(rect(py - half_w, pz - half_h, py + half_w, pz + half_h),
-                   rect(py - half_w, -H, py + half_w, -H + foot_h))
-    shaft_hole = max(m.shaft_diameter_mm, m.boss_diameter_mm) + SHAFT_CLEARANCE_MM
-    holes = [round_hole(py, pz, shaft_hole)]
-    if m.screw_spacing_mm:
-        holes += [round_hole(py + s * m.screw_spacing_mm / 2, pz, m.screw_diameter_mm) for s in (-1, 1)]
-    return Blank(
-        name="motor-mount",
-        outline=outline,
-        placements=(place(Y, Z, (L.mount_x_mm, 0.0, 0.0)),),
-        description="holds the gear-motor; screw it on from outside",
-        holes=tuple(holes),
-        edges=(("foot", Edge((py - half_w, -H), (py + half_w, -H), -1)),),
     )

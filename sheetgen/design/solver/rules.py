@@ -206,28 +206,38 @@ def _wheel_for_torque_margin(st: State) -> dict:
 
 
 def _motor_shaft_reach(st: State) -> dict:
+    """The motor's face sits drive.mount_gap past the gear stack (the mount plate
+    clamps the body, flush with the face, so no plate eats the shaft): the shaft
+    grips the pinion when shaft >= gap + grip, and its end keeps SHAFT_END_GAP_MM
+    off the support when the spacers leave room for what runs past the pinion."""
     from sheetgen.design.layout import MOUNT_GAP_MM, SHAFT_END_GAP_MM, pinion_grip_mm
 
     s = st.spec
     t, layers, shaft = s.sheet.thickness_mm, s.drive.layers, s.motor.shaft_length_mm
-    n_max = int(key_hi("drive.wheel_spacers"))
+    n_lo, n_max = int(key_lo("drive.wheel_spacers")), int(key_hi("drive.wheel_spacers"))
+    grip = pinion_grip_mm(t, layers)
     if not st.is_auto("drive.mount_gap"):
         gap = s.drive.mount_gap_mm
-        poke = shaft - (t + gap + layers * t)  # past the pinion's inner face toward the support
-        n = max(1, math.ceil((poke + SHAFT_END_GAP_MM) / t - 1e-9))
+        poke = shaft - (gap + layers * t)  # past the pinion's inner face toward the support
+        n = max(n_lo, math.ceil((poke + SHAFT_END_GAP_MM) / t - 1e-9))
         return {"drive.wheel_spacers": n if st.is_auto("drive.wheel_spacers") else s.drive.wheel_spacers,
                 "drive.mount_gap": gap}
-    need = t + MOUNT_GAP_MM + pinion_grip_mm(t, layers)
+    need = MOUNT_GAP_MM + grip
     if shaft < need - 1e-9:
-        raise NoLayout(f"motor.shaft_length = {shaft:g} mm is too short to pass the {t:g} mm motor mount and grip "
-                       f"the pinion stack "
-                       f"({layers} layer(s) of {t:g} mm) by {pinion_grip_mm(t, layers):g} mm", "shaft", need_mm=need)
-    extra = shaft - (t + MOUNT_GAP_MM + layers * t)  # past the pinion's inner face (negative: ends inside it)
-    counts = range(1, n_max + 1) if st.is_auto("drive.wheel_spacers") else [s.drive.wheel_spacers]
+        raise NoLayout(f"motor.shaft_length = {shaft:g} mm is too short to cross the {MOUNT_GAP_MM:g} mm gap to "
+                       f"the pinion and grip its stack ({layers} layer(s) of {t:g} mm) by {grip:g} mm",
+                       "shaft", need_mm=need)
+    extra = shaft - (MOUNT_GAP_MM + layers * t)  # past the pinion's inner face (negative: ends inside it)
+    counts = range(n_lo, n_max + 1) if st.is_auto("drive.wheel_spacers") else [s.drive.wheel_spacers]
     for n in counts:
         room = n * t - SHAFT_END_GAP_MM  # how far the spacer stack lets the shaft run past the pinion
         gap = MOUNT_GAP_MM + max(0.0, extra - room)
+        # a longer gap moves the motor out (a longer overhang of the wheel); up to one sheet is taken
+        # before another spacer is added
         if gap <= MOUNT_GAP_MM + t + 1e-9 or n == counts[-1]:
+            if shaft - gap < grip - 1e-9:  # cannot happen with n >= 1 (the spacers give room), kept as a guard
+                raise NoLayout(f"motor.shaft_length = {shaft:g} mm: no spacer count keeps the pinion gripped and "
+                               "the shaft end off the support", "shaft", need_mm=need)
             return {"drive.wheel_spacers": n, "drive.mount_gap": round(gap, 3)}
     raise AssertionError("unreachable")
 
@@ -333,8 +343,10 @@ RULES: tuple[Rule, ...] = (
          "the fewest teeth giving check.torque_margin over the worst load, within the module's limits "
          "(the wheel within half the sheet's short side); else the most it allows", _wheel_for_torque_margin),
     Rule("motor_shaft_reach", ("drive.wheel_spacers", "drive.mount_gap"),
-         "the spacer stack and mount gap that put the pinion on the shaft's full reach, the shaft end "
-         "at least 1 mm from the support", _motor_shaft_reach),
+         "the motor's face (the mount plate clamps its body, flush with the face) at least 1 mm past the gear "
+         "stack, and the fewest spacers that keep the shaft end at least 1 mm from the support while the "
+         "shaft grips the pinion; the gap grows (up to one sheet per spacer saved) for a long shaft",
+         _motor_shaft_reach),
     Rule("axle_clears_travel", ("axle.height",),
          f"the lowest height, on a {HEIGHT_GRID_MM:g} mm grid, keeping frame.clearance (plus at most "
          f"{HEIGHT_SURPLUS_MM:g} mm) through the travel, the motor off the base and the stop arm its shortest "
