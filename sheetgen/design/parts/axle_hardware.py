@@ -1,4 +1,8 @@
-"""Rings on the axle: the collar that holds it endwise, and spacer washers."""
+"""Rings on the axle: the collar that holds it endwise, and spacer washers.
+
+Both stay round: the collar grips the axle's round end (outside the flat, which
+runs from the -x rib to the +x end) and carries no torque; the spacers must turn
+freely against the supports, so their bores are loose (axle.bearing_clearance)."""
 
 from __future__ import annotations
 
