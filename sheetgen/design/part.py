@@ -184,6 +184,25 @@ class Component:
     flat_mm: float = 0.0
     flat_from_x_mm: float = 0.0
 
+    def cg_mm(self) -> tuple[float, float, float]:
+        """Centre of gravity at rotation 0: the shape's centre, except a rod with a
+        flat, whose D length is lighter on the flat's side (local +y of the rod's
+        section = kit +z): the area-weighted centroid of its round and D lengths."""
+        if self.shape != "cylinder_x" or self.flat_mm <= 0:
+            return self.centre_mm
+        from sheetgen.geometry.shapes import d_shape, disc
+
+        cx, cy, cz = self.centre_mm
+        length, dia, _ = self.size_mm
+        x0, x1 = cx - length / 2, cx + length / 2
+        xf = min(max(self.flat_from_x_mm, x0), x1)
+        a_r = disc(0.0, 0.0, dia / 2).area
+        dd = d_shape(0.0, 0.0, dia, self.flat_mm)
+        a_d, z_d = dd.area, dd.centroid.y
+        v_r, v_d = a_r * (xf - x0), a_d * (x1 - xf)
+        x = (v_r * (x0 + xf) / 2 + v_d * (xf + x1) / 2) / (v_r + v_d)
+        return (x, cy, cz + v_d * z_d / (v_r + v_d))
+
     def turned(self, angle_deg: float) -> "Component":
         if not self.rotating:
             return self

@@ -112,7 +112,7 @@ def _part_items(part: Part) -> list[ItemMass]:
 
 
 def _component_item(comp: Component) -> ItemMass:
-    x, y, z = comp.centre_mm
+    x, y, z = comp.cg_mm()
     c = (float(x), float(y), float(z))
     return ItemMass(comp.name, comp.name, "component", float(comp.mass_kg), c, comp.rotating)
 

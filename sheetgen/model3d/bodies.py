@@ -258,18 +258,27 @@ def model_bodies(kit: Kit, spec) -> tuple[Body, ...]:
 
 def turns_in_place(body: Body) -> bool:
     """A rotating body that is round about the axle (rod, collar, washers): the
-    frame's rotation only turns it in its own place."""
+    frame's rotation only turns it in its own place. A keyed rod counts too: its
+    D length keeps the rod's circle over more than half its round (the flat lies
+    inside it), so its least distance to what stands round it is the round
+    length's, at every angle."""
     if not body.rotating:
         return False
+    round_r: list[float] = []
+    keyed: list[float] = []
     for p in body.pieces:
         if not p.axial:
             return False
         shape = p.yz_projection()
-        for ring in [shape.exterior, *shape.interiors]:
+        for k, ring in enumerate([shape.exterior, *shape.interiors]):
             r = np.hypot(*np.asarray(ring.coords, dtype=float).T)
-            if r.max() - r.min() > ROUND_TOL_MM:
+            if r.max() - r.min() <= ROUND_TOL_MM:
+                round_r.append(float(r.max()))
+            elif k == 0 and body.kind == "component" and len(body.pieces) > 1:
+                keyed.append(float(r.max()))
+            else:
                 return False
-    return True
+    return all(any(abs(k - rr) <= ROUND_TOL_MM for rr in round_r) for k in keyed)
 
 
 # -- exact formulas for prisms on parallel axes -----------------------------

@@ -98,10 +98,11 @@ def plan_counterweight(spec, L: Layout, parts: tuple[Part, ...],
     d = spec.axle.diameter_mm
     bolt = spec.frame.bolt_diameter_mm
     rb = (d / 2 + L.hub_r_mm) / 2
-    perp = np.array([-u[1], u[0]])
+    # two bolts through both hubs, level either side of the axle (the same holes whatever the
+    # counterweight's direction, so the rib changes only with the hub)
     bolts: tuple[tuple[float, float], ...] = ()
     if bolt > 0 and rb - bolt / 2 - d / 2 >= BOLT_MATERIAL_MM and L.hub_r_mm - rb - bolt / 2 >= BOLT_MATERIAL_MM:
-        bolts = tuple((float(s * rb * perp[0]), float(s * rb * perp[1])) for s in (1.0, -1.0))
+        bolts = ((rb, 0.0), (-rb, 0.0))
     from sheetgen.design.parts.frame import keyed_bore
 
     bore = keyed_bore(spec, L)
