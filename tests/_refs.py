@@ -325,3 +325,16 @@ def static_unbalance_gmm(masses_kg, points_mm) -> float:
     uy = sum(m * p[1] for m, p in zip(masses_kg, points_mm)) * 1000.0
     uz = sum(m * p[2] for m, p in zip(masses_kg, points_mm)) * 1000.0
     return math.hypot(uy, uz)
+
+
+def d_profile_centroid_offset_mm(diameter_mm: float, across_flat_mm: float) -> float:
+    """Distance of a D profile's centroid from the circle's centre, away from the flat:
+    the segment cut off has area A_s and centroid 4 r sin^3 t / (3 (2 t - sin 2 t)) from
+    the centre, cos t = h / r (plane geometry, tables of centroids); the D is the circle
+    less it, so its centroid sits A_s y_s / (pi r^2 - A_s) the other way."""
+    r = diameter_mm / 2
+    h = across_flat_mm - r
+    t = math.acos(h / r)
+    a_s = r * r * (t - math.sin(t) * math.cos(t))
+    y_s = 4 * r * math.sin(t) ** 3 / (3 * (2 * t - math.sin(2 * t)))
+    return a_s * y_s / (math.pi * r * r - a_s)

@@ -227,8 +227,16 @@ def _unbalance_gmm(kit, leave_out=()):
                 points.append(pl.apply(np.array([[c.x, c.y, t / 2 - drop]]))[0])
     for comp in kit.components:
         if comp.rotating and comp.name not in leave_out:
+            x, y, z = comp.centre_mm
+            if comp.flat_mm > 0:  # the keyed axle: its D length is lighter on the flat's side (kit +z)
+                length, d, _ = comp.size_mm
+                x0, x1 = x - length / 2, x + length / 2
+                a_r = math.pi * d * d / 4
+                a_d = _refs.d_profile_area_mm2(d, comp.flat_mm)
+                v_r, v_d = a_r * (comp.flat_from_x_mm - x0), a_d * (x1 - comp.flat_from_x_mm)
+                z -= v_d * _refs.d_profile_centroid_offset_mm(d, comp.flat_mm) / (v_r + v_d)
             masses.append(comp.mass_kg)
-            points.append(comp.centre_mm)
+            points.append((x, y, z))
     return _refs.static_unbalance_gmm(masses, points)
 
 

@@ -29,12 +29,13 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
+from shapely.ops import unary_union
 
 from sheetgen.design.layout import Layout
 from sheetgen.design.part import Component, Kit, Part
 from sheetgen.design.parts import Blank, Hole, round_hole
 from sheetgen.geometry.placement import place
-from sheetgen.geometry.shapes import disc, hull
+from sheetgen.geometry.shapes import disc, hull, one_polygon
 
 Y, Z = (0.0, 1.0, 0.0), (0.0, 0.0, 1.0)
 
@@ -117,9 +118,7 @@ def plan_counterweight(spec, L: Layout, parts: tuple[Part, ...],
             holes = (bore,) + tuple(round_hole(x, y, bolt) for x, y in bolts)
             if rad - BAR_SCREW_HOLE_MM / 2 >= BOLT_MATERIAL_MM:
                 holes += (round_hole(end[0], end[1], BAR_SCREW_HOLE_MM),)
-            plate = outline
-            for h in holes:
-                plate = plate.difference(h.nominal)
+            plate = one_polygon(outline.difference(unary_union([h.nominal for h in holes])), BRACKET)
             m_br = plate.area * t * density * 1e-9 * 1000.0  # g
             c = plate.centroid
             u_br = m_br * np.array([c.x, c.y])
