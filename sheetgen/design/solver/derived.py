@@ -23,14 +23,7 @@ FIGURE_RULES = (
     ("layout.shaft_end_gap_mm", "shaft_end_gap_mm", "motor_shaft_reach",
      "gap from the motor shaft's end to the drive-side support"),
     ("layout.clamp_fingers", "clamp_fingers", "clamp_stack", FRAME_RULE_DOCS["clamp_stack"]),
-    ("layout.clamp_finger_bend_mm", "clamp_finger_bend_mm", "clamp_stack", FRAME_RULE_DOCS["clamp_stack"]),
     ("layout.axle_flat_mm", "axle_flat_mm", "axle_keyed", FRAME_RULE_DOCS["axle_keyed"]),
-    ("counterweight.arm_mm", "counterweight_arm_mm", "counterweight_balance",
-     FRAME_RULE_DOCS["counterweight_balance"]),
-    ("counterweight.bar_diameter_mm", "counterweight_bar_diameter_mm", "counterweight_balance",
-     FRAME_RULE_DOCS["counterweight_balance"]),
-    ("counterweight.bar_length_mm", "counterweight_bar_length_mm", "counterweight_balance",
-     FRAME_RULE_DOCS["counterweight_balance"]),
 )
 
 

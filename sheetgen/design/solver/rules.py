@@ -346,13 +346,8 @@ LOAD_KEYS = frozenset({"drive.module", "drive.layers", "drive.wheel_teeth"})  # 
 # so the derived values say by which rule)
 
 FRAME_RULE_DOCS = {
-    "clamp_stack": ("whole rim layers up to the panel's thickness when the remainder is at most the clamp "
-                    "tolerance (0.2 mm: the bolts close it, the bezel bears on the panel); else one more rim "
-                    "layer and spring fingers cut in the bezel, long enough to bend onto the panel within half "
-                    "the sheet's bending strength"),
-    "axle_keyed": ("a flat 0.9 d across (rounded to 0.1 mm) from the -x rib to the axle's +x end; the ribs, "
-                   "the wheel and the counterweight bracket have the matching D-bore (press fit)"),
-    "counterweight_balance": ("when the bare frame's CG sits more than 0.5 mm off the axle: a bracket keyed "
-                              "beside the +x rib and a stock steel bar opposite the CG, as far out as the frame's "
-                              "own depth through the travel allows, its mass cancelling the unbalance"),
+    "clamp_stack": "whole rim layers when the panel is that thick (to 0.2 mm); else one more, and spring fingers in "
+                   "the bezel",
+    "axle_keyed": "a flat 0.9 d across from the -x rib to the +x end; the parts that turn with it have D-bores",
+    "counterweight_balance": "a steel bar opposite the bare frame's CG, on a bracket beside the +x rib",
 }
