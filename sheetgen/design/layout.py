@@ -262,8 +262,8 @@ def _clamp_stack(spec, t: float, tray_z: float) -> dict:
             f"panel.thickness = {p:g}: the rim stack of {rims} x {t:g} mm sheets stands {gap:.2f} mm above the "
             f"panel, and the bezel's spring fingers would need {length:g} mm of window edge to press it down "
             f"within the sheet's bending strength; the window's edges are {2 * wx:.0f} and {2 * wy:.0f} mm; "
-            f"must be a whole number of sheet.thickness (to {CLAMP_TOL_MM:g} mm), e.g. {best:g} mm, which the "
-            "stack clamps by itself")
+            f"must be a whole number of sheet.thickness (to {CLAMP_TOL_MM:g} mm), which the stack clamps by "
+            f"itself: the nearest panel.thickness that builds is {best:g}")
     out.update(mode="fingers", rim_layers=rims, bezel_z_mm=panel_z + rims * t, clamp_gap_mm=gap,
                finger_len_mm=length, finger_width_mm=width, finger_sides=sides)
     return out
