@@ -163,7 +163,7 @@ def compute_layout(spec, centre_distance_mm: float) -> Layout:
             "so the rib slots keep material around them")
     hub_r = d / 2 + max(2.5 * t, 0.75 * d, 5.0)
     tray_z = hub_r
-    clamp = _clamp_stack(spec, t, tray_z)
+    clamp = clamp_stack(spec, t, tray_z)
     rim_layers = clamp["rim_layers"]
     rib_x = W / 2 + (b - ledge) / 2
     rib_half_y = Hp / 2 + b - 2.0
@@ -233,7 +233,7 @@ def compute_layout(spec, centre_distance_mm: float) -> Layout:
     )
 
 
-def _clamp_stack(spec, t: float, tray_z: float) -> dict:
+def clamp_stack(spec, t: float, tray_z: float) -> dict:
     """Rim layers and how the bezel bears on the panel (see CLAMP_TOL_MM)."""
     p = spec.panel.thickness_mm
     panel_z = tray_z + t
