@@ -82,7 +82,7 @@ def finger_length_mm(material: str, t_mm: float, deflection_mm: float) -> float:
     from sheetgen.mechanics.materials import sheet_material
 
     allow = sheet_material(material).bending_strength_MPa / FINGER_SAFETY
-    e = FLEX_MODULUS_MPA[material]
+    e = FLEX_MODULUS_MPA.get(material, max(FLEX_MODULUS_MPA.values()))  # a material not tabled: the stiffest
     return float(math.ceil(math.sqrt(1.5 * e * t_mm * deflection_mm / allow) - 1e-9))
 
 
