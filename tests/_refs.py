@@ -293,3 +293,48 @@ def refused(reason: str) -> None:
 
     _tally().refused[reason] += 1
     event(f"refused: {reason}")
+
+
+# ---------------------------------------------------------------------------
+# the frame as a machine: D-profile shafts, cantilever fingers, static unbalance
+# ---------------------------------------------------------------------------
+
+
+def d_profile_area_mm2(diameter_mm: float, across_flat_mm: float) -> float:
+    """Section of a round shaft with one flat (D profile): the circle less the
+    circular segment the flat cuts off, segment = r^2 acos(h / r) - h sqrt(r^2 - h^2)
+    with h the distance of the flat from the centre (plane geometry)."""
+    r = diameter_mm / 2
+    h = across_flat_mm - r
+    segment = r * r * math.acos(h / r) - h * math.sqrt(r * r - h * h)
+    return math.pi * r * r - segment
+
+
+def cantilever_root_stress_MPa(modulus_MPa: float, thickness_mm: float, tip_deflection_mm: float,
+                               length_mm: float) -> float:
+    """Root bending stress of a rectangular cantilever whose tip is pushed
+    ``tip_deflection_mm`` by an end load: y = F L^3 / (3 E I), s = F L (t / 2) / I,
+    so s = 3 E t y / (2 L^2) (Roark's Formulas for Stress and Strain, table of
+    beams, cantilever with an end load; from memory)."""
+    return 3.0 * modulus_MPa * thickness_mm * tip_deflection_mm / (2.0 * length_mm ** 2)
+
+
+def static_unbalance_gmm(masses_kg, points_mm) -> float:
+    """Static unbalance about the x axis, U = |sum m_i (y_i, z_i)| in g·mm
+    (lever rule; ISO 21940-11 states static unbalance in g·mm, from memory)."""
+    uy = sum(m * p[1] for m, p in zip(masses_kg, points_mm)) * 1000.0
+    uz = sum(m * p[2] for m, p in zip(masses_kg, points_mm)) * 1000.0
+    return math.hypot(uy, uz)
+
+
+def d_profile_centroid_offset_mm(diameter_mm: float, across_flat_mm: float) -> float:
+    """Distance of a D profile's centroid from the circle's centre, away from the flat:
+    the segment cut off has area A_s and centroid 4 r sin^3 t / (3 (2 t - sin 2 t)) from
+    the centre, cos t = h / r (plane geometry, tables of centroids); the D is the circle
+    less it, so its centroid sits A_s y_s / (pi r^2 - A_s) the other way."""
+    r = diameter_mm / 2
+    h = across_flat_mm - r
+    t = math.acos(h / r)
+    a_s = r * r * (t - math.sin(t) * math.cos(t))
+    y_s = 4 * r * math.sin(t) ** 3 / (3 * (2 * t - math.sin(2 * t)))
+    return a_s * y_s / (math.pi * r * r - a_s)

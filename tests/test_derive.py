@@ -283,11 +283,15 @@ def test_demo_derived_values_against_the_hand_set_demo():
     # against frame.clearance = 5, so the rule finds less, and 90 still builds
     assert got["axle.height"] < 90
     build_kit(spec_from_dict(doc, (("axle.height", 90),), source=str(DEMO)))
-    # the wheel: the hand-set 60 teeth gave a margin of 1.08; check.torque_margin asks 1.25 by
-    # default, so the rule gives more teeth; asked for the old margin it gives the old wheel
-    assert got["drive.wheel_teeth"] > 60
+    # the wheel: the hand-set 60 teeth gave a margin of 1.08 on the frame without a counterweight;
+    # the kit now carries the counterweight it derives (rule counterweight_balance), so the load is
+    # mostly friction and wind and the rule needs fewer teeth for check.torque_margin = 1.25; the
+    # teeth follow the margin asked for in proportion (the fewest giving it: lever rule on the ratio)
+    z = got["drive.wheel_teeth"]
+    assert z < 60
     old = spec_from_dict(doc, (("check.torque_margin", 1.08),), source=str(DEMO))
-    assert abs(old.drive.wheel_teeth - 60) <= 1
+    assert old.drive.wheel_teeth <= z
+    assert z == pytest.approx(old.drive.wheel_teeth * 1.25 / 1.08, abs=2)
 
 
 def test_demo_solve_settles_within_the_round_bound():
@@ -354,6 +358,15 @@ def test_primary_inputs_build_or_are_refused_with_a_value_that_builds():
         assert fix, out.message
         assert fix[0].split("=")[0] in out.message
         again = judge(DEMO, draw.overrides() + fix)
+        # a draw may break two independent rules (the kerf and the clamp stack, say): each refusal
+        # names its own value, and applying them in turn builds
+        for _ in range(2):
+            if again.built:
+                break
+            more = suggestion(again.message)
+            assert more, again.message
+            fix += more
+            again = judge(DEMO, draw.overrides() + fix)
         assert again.built, (out.message, again.message)
 
     one()

@@ -315,52 +315,65 @@ def _report(doc, overrides=()):
     return balance_check(build_kit(s), s)
 
 
+def _bare(kit):
+    """The kit without the counterweight it carries (bracket and bar)."""
+    from sheetgen.design.part import Kit
+
+    return Kit(tuple(p for p in kit.parts if p.name != "counterweight-bracket"),
+               tuple(c for c in kit.components if c.name != "counterweight"))
+
+
 def test_demo_probe_mass_and_counterweight():
-    # lever rule through the parameter file: a 50 g probe at [0, 40, 0] moves the rotating
-    # mass and CG as (M c + m p) / (M + m); the suggested counterweight, added back as a
-    # [[rotating_mass]], brings the unbalance to zero
-    doc = _demo_doc()
-    base = _report(doc)
-    M, c = base.mass.rotating_mass_kg, np.asarray(base.mass.rotating_cg_mm)
+    # lever rule through the parameter file: a 50 g probe at [0, 40, 0] moves the bare frame's
+    # rotating mass and CG as (M c + m p) / (M + m); the kit re-derives the counterweight it
+    # carries for the new unbalance and leaves at most a quarter of it
+    from sheetgen.design.kit import build_kit
+    from sheetgen.mechanics.massprops import mass_properties
+
+    def bare(doc):
+        s = spec_mod.spec_from_dict(doc)
+        kit = build_kit(s)
+        return mass_properties(_bare(kit)), balance_check(kit, s)
+
+    base, _ = bare(_demo_doc())
+    M, c = base.rotating_mass_kg, np.asarray(base.rotating_cg_mm)
     doc_p = _demo_doc()
     doc_p["rotating_mass"].append({"name": "probe", "mass_kg": 0.05, "position_mm": [0.0, 40.0, 0.0]})
-    probed = _report(doc_p)
-    assert probed.mass.rotating_mass_kg == pytest.approx(M + 0.05)
-    np.testing.assert_allclose(probed.mass.rotating_cg_mm, (M * c + 0.05 * np.array([0, 40, 0])) / (M + 0.05),
+    probed, report = bare(doc_p)
+    assert probed.rotating_mass_kg == pytest.approx(M + 0.05)
+    np.testing.assert_allclose(probed.rotating_cg_mm, (M * c + 0.05 * np.array([0, 40, 0])) / (M + 0.05),
                                atol=1e-9)
-    cw = probed.counterweight
-    doc_c = _demo_doc()
-    doc_c["rotating_mass"] += [{"name": "probe", "mass_kg": 0.05, "position_mm": [0.0, 40.0, 0.0]},
-                               {"name": "probe counterweight", "mass_kg": cw.mass_kg,
-                                "position_mm": list(cw.position_mm)}]
-    balanced = _report(doc_c)
-    assert balanced.mass.static_unbalance_gmm == pytest.approx(0.0, abs=1e-6)
-    assert balanced.gravity_torque_max_Nm == pytest.approx(0.0, abs=1e-12)
+    cw = report.counterweight
+    assert cw.carried and cw.bare_unbalance_gmm == pytest.approx(probed.static_unbalance_gmm)
+    assert report.mass.static_unbalance_gmm <= probed.static_unbalance_gmm / 4
 
 
 def test_demo_counterweight_clears_the_fixed_parts():
-    # the suggested bar, swept through the travel with the kit's own clearance sweep,
-    # keeps frame.clearance from every fixed part and lies opposite the CG
+    # the carried bar, swept through the travel with the kit's own clearance sweep,
+    # keeps frame.clearance from every fixed part and lies opposite the bare frame's CG
     from shapely.geometry import Point
 
     from sheetgen.design.clearance import Silhouette, kit_silhouettes, sweep_clearance
     from sheetgen.design.kit import build_kit
-    from sheetgen.mechanics.massprops import COUNTERWEIGHT_DIAMETER_MM
+    from sheetgen.mechanics.massprops import mass_properties
 
     s = spec_mod.spec_from_dict(_demo_doc())
     kit = build_kit(s)
     r = balance_check(kit, s)
     cw = r.counterweight
-    assert cw.mass_kg > 0
+    assert cw.mass_kg > 0 and cw.carried
     x, y, z = cw.position_mm
-    # bar length from its mass: steel 7850 kg/m3 (common practice) over its cross-section
-    half = cw.mass_kg / (7850 * math.pi * (COUNTERWEIGHT_DIAMETER_MM / 2 * 1e-3) ** 2) * 1e3 / 2
-    bar = Silhouette("cw#1", Point(y, z).buffer(COUNTERWEIGHT_DIAMETER_MM / 2), (x - half, x + half), True)
+    bar_c = next(c for c in kit.components if c.name == "counterweight")
+    length, dia, _ = bar_c.size_mm
+    # bar mass from its size: steel 7850 kg/m3 (common practice) over its cross-section
+    assert cw.mass_kg == pytest.approx(7850 * math.pi * (dia / 2 * 1e-3) ** 2 * length * 1e-3)
+    bar = Silhouette("cw#1", Point(y, z).buffer(dia / 2), (x - length / 2, x + length / 2), True)
     fixed = [x for x in kit_silhouettes(kit) if not x.rotating]
     lim = s.site.travel_limit_deg
     assert sweep_clearance(fixed + [bar], (-lim, lim)).min_clearance_mm >= s.frame.clearance_mm - 1e-6
-    c = np.asarray(r.mass.rotating_cg_mm[1:])
-    assert np.dot(c, [y, z]) == pytest.approx(-np.linalg.norm(c) * cw.arm_mm)
+    c = np.asarray(mass_properties(_bare(kit)).rotating_cg_mm[1:])
+    # opposite the bare CG, to within the bracket's own small off-line moment (1 degree)
+    assert np.dot(c, [y, z]) <= -np.linalg.norm(c) * cw.arm_mm * math.cos(math.radians(1.0))
 
 
 def test_no_counterweight_place_over_the_panel():
@@ -408,20 +421,17 @@ def test_failing_variants_say_which_check_and_why():
 
 
 def test_demo_pulse_fix_passes_when_built_in():
-    # check the machine: the change the failing pulse check names (the counterweight,
-    # then a smaller capacitor) is put into the parameters and the kit checked again; the
-    # demo without its counterweight and with a large 4700 µF pulse fails
+    # check the machine: the change the failing pulse check names (a smaller capacitor: the
+    # kit already carries its counterweight) is put into the parameters and the kit checked
+    # again; the demo with a large 4700 µF pulse fails
     doc = _demo_doc()
-    doc["rotating_mass"] = [m for m in doc["rotating_mass"] if m["name"] != "counterweight"]
     doc["drive"]["pulse_capacitance"] = 4700
     r = _report(doc)
     step = next(c for c in r.checks if c.name == "pulse step in calm air")
     assert not step.passed and "would pass" in step.reason
     fix = r.drive_time.fixes[0]
-    assert fix.key == "drive.pulse_capacitance" and "counterweight" in fix.text
-    cw = r.counterweight
-    doc["rotating_mass"] = list(doc.get("rotating_mass", [])) + [
-        {"name": "counterweight", "mass_kg": cw.mass_kg, "position_mm": list(cw.position_mm)}]
+    assert r.counterweight.carried
+    assert fix.key == "drive.pulse_capacitance" and "counterweight" not in fix.text
     doc["drive"]["pulse_capacitance"] = fix.value
     again = _report(doc)
     checks = {c.name: c for c in again.checks}

@@ -67,17 +67,34 @@ def build_kit(spec, *, check_clearance: bool = True, step_labels: bool | None = 
     """
     from sheetgen.design.parts.drive import drive_pair
 
+    from sheetgen.design.parts.counterweight import plan_counterweight
+
     drive = drive_pair(spec)
     layout = compute_layout(spec, drive.centre_distance_mm)
     made = (factory(spec, layout, drive) for factory in part_families())
     blanks = {b.name: b for b in made if b is not None}  # a family may not apply (the wedge: polar only)
     tabs, slots, joints = _joints(spec, blanks)
     parts = tuple(_make_part(spec, b, tabs.get(b.name, []), slots.get(b.name, [])) for b in blanks.values())
+    components = _components(spec, layout)
+    figures = _figures(spec, layout, drive)
+    # the counterweight the bare frame needs (rule counterweight_balance): a bracket part, its
+    # bolts through the rib, and the bar
+    cw = plan_counterweight(spec, layout, parts, components)
+    if cw is not None:
+        rib = blanks["rib"]
+        rib = dataclasses.replace(rib, holes=rib.holes + cw.rib_holes)
+        parts = tuple(_make_part(spec, rib, tabs.get("rib", []), slots.get("rib", [])) if p.name == "rib" else p
+                      for p in parts) + (_make_part(spec, cw.bracket, [], []),)
+        components = components + (cw.component,)
+        figures = figures + (("counterweight_arm_mm", cw.arm_mm), ("counterweight_bar_diameter_mm", cw.bar_diameter_mm),
+                             ("counterweight_bar_length_mm", cw.bar_length_mm),
+                             ("bare_unbalance_gmm", cw.bare_unbalance_gmm),
+                             ("residual_unbalance_gmm", cw.residual_gmm))
     kit = Kit(
         parts=parts,
-        components=_components(spec, layout),
+        components=components,
         joints=tuple(joints),
-        figures=_figures(spec, layout, drive),
+        figures=figures,
         drive=drive,
     )
     _check_fits_sheet(spec, kit)
@@ -194,26 +211,40 @@ def _make_part(spec, blank: Blank, tabs: list[Polygon], slots: list[Polygon]) ->
         circles=tuple(h.circle for h in blank.holes if h.circle is not None),
         fit_outline=fit,
         description=blank.description,
+        sprung=blank.sprung,
     )
 
 
 def _components(spec, L: Layout) -> tuple[Component, ...]:
-    from sheetgen.mechanics.materials import axle_mass_kg
-
     p, m = spec.panel, spec.motor
     length = L.axle_x1_mm - L.axle_x0_mm
     out = [
         Component("panel", p.mass_kg, "box", (0.0, 0.0, L.panel_z_mm + p.thickness_mm / 2),
                   (p.width_mm, p.height_mm, p.thickness_mm), rotating=True),
-        Component("axle", axle_mass_kg(spec.axle.material, spec.axle.diameter_mm, length), "cylinder_x",
+        Component("axle", _keyed_axle_mass_kg(spec, L), "cylinder_x",
                   ((L.axle_x0_mm + L.axle_x1_mm) / 2, 0.0, 0.0), (length, spec.axle.diameter_mm, spec.axle.diameter_mm),
-                  rotating=True),
+                  rotating=True, flat_mm=L.axle_flat_mm, flat_from_x_mm=L.axle_flat_x0_mm),
         Component("motor", m.mass_kg, "box",
                   (L.mount_x_mm + m.body_length_mm / 2, L.pinion_y_mm, L.pinion_z_mm),
                   (m.body_length_mm, m.body_width_mm, m.body_height_mm), rotating=False),
     ]
     out += [Component(r.name, r.mass_kg, "point", r.position_mm, rotating=True) for r in spec.rotating_masses]
     return tuple(out)
+
+
+def _keyed_axle_mass_kg(spec, L: Layout) -> float:
+    """The rod's mass less what its flat removes (the D segment's section from
+    its polygon, the round rod's as a circle)."""
+    from sheetgen.geometry.shapes import d_shape, disc
+    from sheetgen.mechanics.materials import axle_mass_kg, rod_material
+
+    d = spec.axle.diameter_mm
+    full = axle_mass_kg(spec.axle.material, d, L.axle_x1_mm - L.axle_x0_mm)
+    if L.axle_flat_mm <= 0:
+        return full
+    lost_mm2 = disc(0.0, 0.0, d / 2).area - d_shape(0.0, 0.0, d, L.axle_flat_mm).area
+    lost = lost_mm2 * (L.axle_x1_mm - L.axle_flat_x0_mm) * 1e-9 * rod_material(spec.axle.material).density_kg_m3
+    return full - lost
 
 
 def _figures(spec, L: Layout, drive) -> tuple[tuple[str, float], ...]:
@@ -233,6 +264,10 @@ def _figures(spec, L: Layout, drive) -> tuple[tuple[str, float], ...]:
         ("stop_radius_mm", L.stop_radius_mm),
         ("stop_contact_mm", L.stop_contact_mm),
         ("axle_tilt_deg", L.tilt_deg),
+        ("axle_flat_mm", L.axle_flat_mm),
+        ("clamp_fingers", float(len(L.finger_sides))),
+        ("clamp_finger_bend_mm", L.clamp_gap_mm),
+        ("clamp_stack_gap_mm", L.stack_gap_mm),
     )
 
 

@@ -43,6 +43,52 @@ def pinion_grip_mm(t_mm: float, layers: int) -> float:
     return min(layers * t_mm, max(PINION_GRIP_MIN_MM, PINION_GRIP_SHEETS * t_mm))
 ANCHOR_HOLE_MM = 4.5  # base holes to screw the kit down (M4 clearance, ISO 273 medium)
 
+# -- the clamp stack: tray, rim layer(s) and bezel hold the panel ------------
+# Sheets stack in whole thicknesses, so the rim stack meets the panel only when
+# the panel is a whole number of sheets thick. CLAMP_TOL_MM is how far the stack
+# may miss and still clamp by itself: the bolts pull the bezel down onto the
+# panel by that much, an elastic bend of the bezel between the panel edge and
+# the bolt line. 0.2 mm is the order of the thickness tolerance of the sheet
+# stock itself (MDF and plywood of 2 to 6 mm are sold about +-0.2 mm: from memory),
+# so a closer match is not worth more parts. Where the stack misses by more, one
+# more rim layer lifts the bezel clear of the panel and spring fingers cut in the
+# bezel bear on it. (A shim cut from the sheet is a whole sheet thick too: it only
+# changes the stack in whole sheets, as the rim count already does, so it cannot
+# take up the remainder; fingers can.) The fingers are sized for the gap plus
+# CLAMP_TOL_MM, so they still bear on a panel that much thinner than nominal.
+CLAMP_TOL_MM = 0.2
+FINGER_SLOT_MM = 1.0  # the slot freeing a finger from the bezel (wider than any kerf: our rule)
+FINGER_SAFETY = 2.0  # finger bending stress at most the sheet's bending strength / 2 (our rule)
+# flexural modulus for the finger's stress, the high end of each material (a stiffer
+# sheet is more stressed at the same deflection): all from memory
+FLEX_MODULUS_MPA = {"mdf": 3500.0, "birch_plywood": 9000.0, "cast_acrylic": 3300.0}
+
+# -- the keyed axle ---------------------------------------------------------------
+# The axle carries one flat (D profile) from the -x rib to its +x end, so the
+# ribs and the wheel key onto it and it still passes through them end-first.
+# Size across the flat: 0.9 d, rounded to 0.1 mm (common practice for ground D
+# shafts, e.g. 6 mm shafts with the flat 5.4 to 5.5 mm across: from memory).
+AXLE_FLAT_SHARE = 0.9
+
+
+def axle_flat_mm(diameter_mm: float) -> float:
+    """Size across the axle's flat (D profile) for this diameter."""
+    return round(AXLE_FLAT_SHARE * diameter_mm, 1)
+
+
+def finger_length_mm(material: str, t_mm: float, deflection_mm: float) -> float:
+    """Least length of a cantilever finger whose tip deflects ``deflection_mm``
+    with the root stress within the sheet's bending strength / FINGER_SAFETY:
+    tip deflection d = F L^3 / (3 E I) and root stress s = F L c / I with
+    c = t / 2 give s = 3 E t d / (2 L^2) (Roark's Formulas for Stress and
+    Strain, cantilever with an end load), so L = sqrt(1.5 E t d / s).
+    Rounded up to whole mm."""
+    from sheetgen.mechanics.materials import sheet_material
+
+    allow = sheet_material(material).bending_strength_MPa / FINGER_SAFETY
+    e = FLEX_MODULUS_MPA.get(material, max(FLEX_MODULUS_MPA.values()))  # a material not tabled: the stiffest
+    return float(math.ceil(math.sqrt(1.5 * e * t_mm * deflection_mm / allow) - 1e-9))
+
 
 @dataclass(frozen=True)
 class Layout:
@@ -107,6 +153,18 @@ class Layout:
     mount_half_w_mm: float = 0.0  # half width (kit y) of the mount and clamp plates about the pinion axis
     mount_top_z_mm: float = 0.0  # top edge of the mount and clamp plates
     brace_y_mm: float = 0.0  # centre planes of the braces at pinion_y -+ this
+    # the clamp stack (see CLAMP_TOL_MM): "stack" (the bezel bears on the panel itself)
+    # or "fingers" (the bezel rests on the rim stack, its spring fingers bear on the panel)
+    clamp_mode: str = "stack"
+    bezel_z_mm: float = 0.0  # underside of the bezel
+    clamp_gap_mm: float = 0.0  # fingers: how far each finger is pressed down onto the panel
+    stack_gap_mm: float = 0.0  # stack: gap from the rim stack's top to the bezel, closed by the bolts
+    finger_len_mm: float = 0.0
+    finger_width_mm: float = 0.0
+    finger_sides: tuple[str, ...] = ()  # window edges with a finger: "+y", "-y" (along x), "+x", "-x"
+    # the keyed axle: size across the flat, and where the flat starts (it runs to axle_x1_mm)
+    axle_flat_mm: float = 0.0
+    axle_flat_x0_mm: float = 0.0
 
     @property
     def panel_z_mm(self) -> float:
@@ -140,7 +198,8 @@ def compute_layout(spec, centre_distance_mm: float) -> Layout:
             "so the rib slots keep material around them")
     hub_r = d / 2 + max(2.5 * t, 0.75 * d, 5.0)
     tray_z = hub_r
-    rim_layers = max(1, math.ceil(spec.panel.thickness_mm / t - 1e-9))
+    clamp = clamp_stack(spec, t, tray_z)
+    rim_layers = clamp["rim_layers"]
     rib_x = W / 2 + (b - ledge) / 2
     rib_half_y = Hp / 2 + b - 2.0
     bolt = spec.frame.bolt_diameter_mm
@@ -223,7 +282,47 @@ def compute_layout(spec, centre_distance_mm: float) -> Layout:
         clamp_x_mm=clamp_x, motor_web_mm=web, mount_half_w_mm=half_w,
         mount_top_z_mm=pinion_z + spec.motor.body_height_mm / 2 + max(MOTOR_BODY_MARGIN_MM, web),
         brace_y_mm=spec.motor.body_width_mm / 2 + web + t / 2,
+        clamp_mode=clamp["mode"], bezel_z_mm=clamp["bezel_z_mm"], clamp_gap_mm=clamp["clamp_gap_mm"],
+        stack_gap_mm=clamp["stack_gap_mm"], finger_len_mm=clamp["finger_len_mm"],
+        finger_width_mm=clamp["finger_width_mm"], finger_sides=clamp["finger_sides"],
+        axle_flat_mm=axle_flat_mm(d), axle_flat_x0_mm=stop_x,  # the flat runs the whole rod
     )
+
+
+def clamp_stack(spec, t: float, tray_z: float) -> dict:
+    """Rim layers and how the bezel bears on the panel (see CLAMP_TOL_MM)."""
+    p = spec.panel.thickness_mm
+    panel_z = tray_z + t
+    whole = math.floor(p / t + 1e-9)
+    rest = p - whole * t
+    out = {"finger_len_mm": 0.0, "finger_width_mm": 0.0, "finger_sides": (), "clamp_gap_mm": 0.0,
+           "stack_gap_mm": 0.0}
+    if whole >= 1 and rest <= CLAMP_TOL_MM + 1e-9:
+        out.update(mode="stack", rim_layers=whole, bezel_z_mm=panel_z + p, stack_gap_mm=max(0.0, rest))
+        return out
+    rims = whole + 1
+    gap = rims * t - p
+    length = finger_length_mm(spec.sheet.material, t, gap + CLAMP_TOL_MM)
+    ledge = spec.frame.ledge_mm
+    width = min(ledge, max(t, 2.0))
+    wx = spec.panel.width_mm / 2 - ledge  # window half sizes
+    wy = spec.panel.height_mm / 2 - ledge
+    margin = width + FINGER_SLOT_MM  # bezel material kept at each end of the edge
+    sides = tuple(s for s, edge in (("+y", 2 * wx), ("-y", 2 * wx), ("+x", 2 * wy), ("-x", 2 * wy))
+                  if length + FINGER_SLOT_MM + 2 * margin <= edge + 1e-9)
+    if len(sides) < 2:
+        lo, hi = whole * t, rims * t
+        near = [v for v in (lo, hi) if 1.0 <= v <= 25.0]
+        best = min(near, key=lambda v: abs(v - p)) if near else hi
+        raise ParameterError(
+            f"panel.thickness = {p:g}: the rim stack of {rims} x {t:g} mm sheets stands {gap:.2f} mm above the "
+            f"panel, and the bezel's spring fingers would need {length:g} mm of window edge to press it down "
+            f"within the sheet's bending strength; the window's edges are {2 * wx:.0f} and {2 * wy:.0f} mm; "
+            f"must be a whole number of sheet.thickness (to {CLAMP_TOL_MM:g} mm), which the stack clamps by "
+            f"itself: the nearest panel.thickness that builds is {best:g}")
+    out.update(mode="fingers", rim_layers=rims, bezel_z_mm=panel_z + rims * t, clamp_gap_mm=gap,
+               finger_len_mm=length, finger_width_mm=width, finger_sides=sides)
+    return out
 
 
 MOTOR_BODY_MARGIN_MM = 4.0  # mount plate material round the motor body

@@ -14,6 +14,7 @@ simple solids (box, cylinder along x, point) so that mass properties are exact.
 
 from __future__ import annotations
 
+import dataclasses
 from dataclasses import dataclass, field
 from typing import TYPE_CHECKING
 
@@ -67,6 +68,17 @@ class Circle:
 
 
 @dataclass(frozen=True)
+class Sprung:
+    """A region of a part's outline (in the part's own plane) that the assembled
+    kit presses ``drop_mm`` along the part's local -z: a spring finger bearing on
+    what lies under it. The flat part is cut with the region in plane; the 3D
+    model and the mass properties place it where it bears."""
+
+    region: Polygon
+    drop_mm: float
+
+
+@dataclass(frozen=True)
 class Joint:
     """One tab-and-slot joint instance, recorded for fit checks and reports.
 
@@ -109,6 +121,7 @@ class Part:
     circles: tuple[Circle, ...] = ()  # round holes of the fit outline (what is cut, before kerf)
     fit_outline: Polygon | None = None
     description: str = ""
+    sprung: tuple[Sprung, ...] = ()  # spring fingers, pressed down in the assembled kit
 
     def __post_init__(self):
         if self.qty < 1:
@@ -142,8 +155,13 @@ class Part:
         return any(p.rotating for p in self.placements)
 
     def local_centroid_mm(self) -> np.ndarray:
+        """Centre of gravity in the part's frame as assembled: spring fingers
+        (``sprung``) sit their drop lower than the rest of the plate."""
         c = self.outline.centroid
-        return np.array([c.x, c.y, self.thickness_mm / 2.0])
+        z = self.thickness_mm / 2.0
+        if self.sprung:
+            z -= sum(s.region.area * s.drop_mm for s in self.sprung) / self.outline.area
+        return np.array([c.x, c.y, z])
 
 
 @dataclass(frozen=True)
@@ -161,12 +179,35 @@ class Component:
     centre_mm: tuple[float, float, float]
     size_mm: tuple[float, float, float] = (0.0, 0.0, 0.0)
     rotating: bool = False
+    # a "cylinder_x" rod with a flat (D profile): the size across the flat, 0 for a round rod,
+    # and the x from which the flat runs to the rod's +x end
+    flat_mm: float = 0.0
+    flat_from_x_mm: float = 0.0
+
+    def cg_mm(self) -> tuple[float, float, float]:
+        """Centre of gravity at rotation 0: the shape's centre, except a rod with a
+        flat, whose D length is lighter on the flat's side (local +y of the rod's
+        section = kit +z): the area-weighted centroid of its round and D lengths."""
+        if self.shape != "cylinder_x" or self.flat_mm <= 0:
+            return self.centre_mm
+        from sheetgen.geometry.shapes import d_shape, disc
+
+        cx, cy, cz = self.centre_mm
+        length, dia, _ = self.size_mm
+        x0, x1 = cx - length / 2, cx + length / 2
+        xf = min(max(self.flat_from_x_mm, x0), x1)
+        a_r = disc(0.0, 0.0, dia / 2).area
+        dd = d_shape(0.0, 0.0, dia, self.flat_mm)
+        a_d, z_d = dd.area, dd.centroid.y
+        v_r, v_d = a_r * (xf - x0), a_d * (x1 - xf)
+        x = (v_r * (x0 + xf) / 2 + v_d * (xf + x1) / 2) / (v_r + v_d)
+        return (x, cy, cz + v_d * z_d / (v_r + v_d))
 
     def turned(self, angle_deg: float) -> "Component":
         if not self.rotating:
             return self
         c = rotation_x(angle_deg) @ np.asarray(self.centre_mm, dtype=float)
-        return Component(self.name, self.mass_kg, self.shape, vec_tuple(c), self.size_mm, True)
+        return dataclasses.replace(self, centre_mm=vec_tuple(c))
 
 
 @dataclass(frozen=True)

@@ -526,6 +526,11 @@ def check_cross_rules(spec: Spec) -> None:
         raise ParameterError(
             f"frame.bolt_diameter = {spec.frame.bolt_diameter_mm:g}: must be at most frame.border - 2 "
             f"({spec.frame.border_mm - 2:g} mm), or 0")
+    # the clamp stack: spring fingers that fit the bezel's window where the panel is not a whole
+    # number of sheets thick (inputs only, so it is checked before the layout is solved)
+    from sheetgen.design.layout import clamp_stack
+
+    clamp_stack(spec, spec.sheet.thickness_mm, 0.0)
 
 
 if __name__ == "__main__":  # pragma: no cover

@@ -181,7 +181,10 @@ def _checks(build):
         ("motor torque required / available", f"{b['motor_torque_required_Nm']:.4f} / "
                                               f"{b['motor_torque_available_Nm']:.4f} N·m (margin {b['torque_margin']:.2f})"),
         ("tooth stress / allowable", f"{b['tooth_stress_MPa']:.2f} / {b['tooth_stress_allowable_MPa']:.2f} MPa"),
-        ("counterweight to balance", f"{cw['mass_kg'] * 1000:.1f} g at ({', '.join(_f(v, 1) for v in cw['position_mm'])}) mm"
+        ("counterweight carried" if cw.get("carried") else "counterweight to balance",
+         f"{cw['mass_kg'] * 1000:.1f} g at ({', '.join(_f(v, 1) for v in cw['position_mm'])}) mm"
+         + (f"; unbalance {_f(cw['bare_unbalance_gmm'], 0)} g·mm bare, {_f(cw['residual_unbalance_gmm'], 0)} "
+            "g·mm with it" if cw.get("carried") else "")
          if cw.get("found", True) else "no place found on the frame"),
         ("ballast against tipping in the design wind", f"{b['ballast_kg']:.2f} kg"),
     ]

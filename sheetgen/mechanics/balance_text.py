@@ -62,7 +62,11 @@ def render_text(report: BalanceReport) -> str:
     t = report.tooth
     row(f"tooth stress ({t.weaker_gear})", f"{t.stress_MPa:.3f} of {t.allowable_MPa:.2f}", "MPa")
     cw = report.counterweight
-    row("counterweight", f"{cw.mass_kg * 1000:.1f} g at {_pos3(cw.position_mm)}", "mm")
+    row("counterweight" + (" (carried)" if cw.carried else ""), f"{cw.mass_kg * 1000:.1f} g at {_pos3(cw.position_mm)}",
+        "mm")
+    if cw.carried:
+        row("unbalance bare / with the counterweight",
+            f"{cw.bare_unbalance_gmm:.0f} / {cw.residual_unbalance_gmm:.0f}", "g·mm")
     row("ballast for the design wind", f"{report.tipping.ballast_kg:.3f}", "kg")
     width = max(len(a) for a, _ in rows)
     lines += [f"  {a:<{width}}  {b}" for a, b in rows]

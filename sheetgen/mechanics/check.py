@@ -115,7 +115,7 @@ def balance_check(kit: Kit, spec) -> BalanceReport:
     calm_load = AxleLoad.from_unbalance(mp.static_unbalance_gmm, mp.cg_angle_deg, tilt, friction_calm)
     wind_load = AxleLoad.from_unbalance(mp.static_unbalance_gmm, mp.cg_angle_deg, tilt, friction, wind.torque_Nm)
     balanced = None
-    if cw.found and cw.mass_kg > 0 and mp.rotating_mass_kg > 0:
+    if cw.found and not cw.carried and cw.mass_kg > 0 and mp.rotating_mass_kg > 0:
         grow = (mp.rotating_mass_kg + cw.mass_kg) / mp.rotating_mass_kg
         f_extra = (friction_calm) * (grow - 1.0)
         balanced = (inertia + cw.mass_kg * (cw.arm_mm * 1e-3) ** 2,
@@ -164,7 +164,8 @@ def _checks(spec, mp, tr, g_max, load, df, dtm, year, tooth, tipping, cw, materi
     share = g_max / load if load > 0 else 0.0
     fix = ("raise the gear ratio (drive.wheel_teeth / drive.pinion_teeth), use a stronger motor"
            + (f", or balance the frame (gravity is {share:.0%} of the load: "
-              f"{cw.mass_kg * 1000:.0f} g at {_pos(cw.position_mm)} mm)" if share > 0.2 and cw.found else ""))
+              f"{cw.mass_kg * 1000:.0f} g at {_pos(cw.position_mm)} mm)" if share > 0.2 and cw.found
+              and not cw.carried else ""))
     want = spec.check.torque_margin
     ok = df.motor_torque_required_Nm * want <= df.motor_torque_available_Nm * (1 + 1e-9)
     out.append(Check(

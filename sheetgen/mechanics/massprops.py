@@ -112,7 +112,7 @@ def _part_items(part: Part) -> list[ItemMass]:
 
 
 def _component_item(comp: Component) -> ItemMass:
-    x, y, z = comp.centre_mm
+    x, y, z = comp.cg_mm()
     c = (float(x), float(y), float(z))
     return ItemMass(comp.name, comp.name, "component", float(comp.mass_kg), c, comp.rotating)
 
@@ -159,6 +159,9 @@ class Counterweight:
     arm_mm: float
     rule: str  # how the position was chosen
     found: bool = True  # False: no usable place was found; the figures are for reference only
+    carried: bool = False  # True: the kit carries it (a counterweight-bracket part and a bar)
+    bare_unbalance_gmm: float = 0.0  # carried: the frame's unbalance without bracket and bar
+    residual_unbalance_gmm: float = 0.0  # carried: what is left with them
 
 
 def counterweight_at_arm(mp: MassProperties, arm_mm: float, x_mm: float | None = None) -> Counterweight:
@@ -246,6 +249,9 @@ def suggest_counterweight(kit: Kit, mp: MassProperties, travel_deg: tuple[float,
     bracket to the frame is the builder's to fit."""
     from sheetgen.design.clearance import kit_silhouettes, sweep_clearance
 
+    carried = _carried(kit, mp)
+    if carried is not None:
+        return carried
     r = mp.unbalance_radius_mm
     if r == 0.0:
         return counterweight_at_arm(mp, 1.0)
@@ -277,3 +283,22 @@ def suggest_counterweight(kit: Kit, mp: MassProperties, travel_deg: tuple[float,
             f"and stays off the turning parts and the panel's sunny side; given at {a_min:g} mm "
             "from the axle for reference only: move the heavy items instead")
     return Counterweight(cw.mass_kg, cw.position_mm, cw.arm_mm, rule, found=False)
+
+
+def _carried(kit: Kit, mp: MassProperties) -> Counterweight | None:
+    """The counterweight the kit carries (component "counterweight" on its
+    bracket), with the bare frame's unbalance (the kit without bracket and bar)
+    and the residual (the kit as it is)."""
+    bar = next((c for c in kit.components if c.name == "counterweight" and c.rotating), None)
+    if bar is None:
+        return None
+    bare = Kit(tuple(p for p in kit.parts if p.name != "counterweight-bracket"),
+               tuple(c for c in kit.components if c is not bar))
+    u_bare = mass_properties(bare).static_unbalance_gmm
+    _, y, z = bar.centre_mm
+    length, dia, _ = bar.size_mm
+    rule = (f"carried: steel bar {dia:g} mm across and {length:g} mm long on the counterweight-bracket, "
+            f"{math.hypot(y, z):.0f} mm from the axle opposite the frame's CG; unbalance {u_bare:.0f} g·mm bare, "
+            f"{mp.static_unbalance_gmm:.0f} g·mm with it")
+    return Counterweight(float(bar.mass_kg), bar.centre_mm, math.hypot(y, z), rule, True, True, u_bare,
+                         mp.static_unbalance_gmm)

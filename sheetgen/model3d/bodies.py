@@ -13,7 +13,7 @@ from shapely import affinity
 from shapely.geometry import MultiPoint, Polygon
 
 from sheetgen.errors import GeometryBug, ParameterError
-from sheetgen.geometry.shapes import GRID_MM, disc, rect
+from sheetgen.geometry.shapes import GRID_MM, d_shape, disc, one_polygon, rect
 from sheetgen.design.kit import MESHING
 from sheetgen.design.part import Component, Kit
 from sheetgen.geometry.placement import Placement, mat3, place
@@ -186,7 +186,19 @@ def _component_pieces(comp: Component, kit: Kit, spec, turns: dict[str, float]) 
         # the same polygon the bores are cut from (chords within 0.01 mm of the
         # circle), so a press bore meets the rod face to face
         rod = _snap(disc(0.0, 0.0, diameter / 2))
-        return (Prism(rod, length, place(Y, Z, (cx - length / 2, cy, cz), comp.rotating)),)
+        x0, x1 = cx - length / 2, cx + length / 2
+        if comp.flat_mm > 0 and comp.flat_from_x_mm <= x0 + 1e-9:
+            # keyed its whole length: the D profile the keyed bores are cut from
+            return (Prism(_snap(d_shape(0.0, 0.0, diameter, comp.flat_mm)), length,
+                          place(Y, Z, (x0, cy, cz), comp.rotating)),)
+        if comp.flat_mm > 0 and x0 < comp.flat_from_x_mm < x1:
+            # a keyed rod: the D profile the keyed bores are cut from, full length (the first
+            # piece, whose centre weighs the component), and the round rod up to the flat's start
+            d_rod = _snap(d_shape(0.0, 0.0, diameter, comp.flat_mm))
+            xf = comp.flat_from_x_mm
+            return (Prism(d_rod, length, place(Y, Z, (x0, cy, cz), comp.rotating)),
+                    Prism(rod, xf - x0, place(Y, Z, (x0, cy, cz), comp.rotating)))
+        return (Prism(rod, length, place(Y, Z, (x0, cy, cz), comp.rotating)),)
     raise GeometryBug(f"component {comp.name}: unknown shape {comp.shape!r}")
 
 
@@ -209,6 +221,24 @@ def _motor_shaft(comp: Component, kit: Kit, spec, turns: dict[str, float]) -> li
     return [Prism(_bore(pinion.outline), length, Placement(at.rotation, (face_x - length, py, pz), False))]
 
 
+def _part_pieces(part, at: Placement) -> tuple[Prism, ...]:
+    """The part's plate; its spring fingers (``part.sprung``) as pieces of their
+    own, moved their drop along the part's -z onto what they bear on (each
+    still shares a face with the plate at its root, so the body stays one solid)."""
+    if not part.sprung:
+        return (Prism(part.outline, part.thickness_mm, at),)
+    plate = part.outline
+    for s in part.sprung:
+        plate = plate.difference(s.region)
+    pieces = [Prism(_snap(one_polygon(plate, f"{part.name} plate")), part.thickness_mm, at)]
+    m = np.asarray(at.matrix, dtype=float)
+    for s in part.sprung:
+        moved = np.asarray(at.translation_mm, dtype=float) - s.drop_mm * m[:, 2]
+        pieces.append(Prism(_snap(s.region), part.thickness_mm,
+                            Placement(at.rotation, (float(moved[0]), float(moved[1]), float(moved[2])), at.rotating)))
+    return tuple(pieces)
+
+
 def model_bodies(kit: Kit, spec) -> tuple[Body, ...]:
     """Every solid of the nominal model, in the kit frame at rotation 0; the
     pinion turned so that a tooth sits in a wheel space."""
@@ -219,7 +249,7 @@ def model_bodies(kit: Kit, spec) -> tuple[Body, ...]:
         for i, pl in enumerate(part.placements):
             at = spun(pl, spin) if spin else pl
             out.append(Body(f"{part.name}#{i + 1}", part.name, "part", pl.rotating,
-                            (Prism(part.outline, part.thickness_mm, at),), part.material))
+                            _part_pieces(part, at), part.material))
     for comp in kit.components:
         pieces = _component_pieces(comp, kit, spec, turns)
         if pieces:
@@ -232,18 +262,31 @@ def model_bodies(kit: Kit, spec) -> tuple[Body, ...]:
 
 def turns_in_place(body: Body) -> bool:
     """A rotating body that is round about the axle (rod, collar, washers): the
-    frame's rotation only turns it in its own place."""
+    frame's rotation only turns it in its own place. A keyed rod counts too: its
+    D length keeps the rod's circle over more than half its round (the flat lies
+    inside it), so its least distance to what stands round it is the round
+    length's, at every angle."""
     if not body.rotating:
         return False
+    round_r: list[float] = []
+    keyed: list[float] = []
     for p in body.pieces:
         if not p.axial:
             return False
         shape = p.yz_projection()
-        for ring in [shape.exterior, *shape.interiors]:
+        for k, ring in enumerate([shape.exterior, *shape.interiors]):
             r = np.hypot(*np.asarray(ring.coords, dtype=float).T)
-            if r.max() - r.min() > ROUND_TOL_MM:
+            if r.max() - r.min() <= ROUND_TOL_MM:
+                round_r.append(float(r.max()))
+            elif k > 0:
+                continue  # a bore's shape (a keyed D-bore): only the rod inside meets it, and turns with it
+            elif body.kind == "component" and r.min() > 0.5 * r.max():
+                keyed.append(float(r.max()))  # a keyed rod's D profile
+            else:
                 return False
-    return True
+    # a rod keyed its whole length is one D piece: its flat lies inside its circle, and the
+    # circle's arc (more than half the round) is what meets the round bearing holes
+    return len(body.pieces) == 1 or all(any(abs(k - rr) <= ROUND_TOL_MM for rr in round_r) for k in keyed)
 
 
 # -- exact formulas for prisms on parallel axes -----------------------------

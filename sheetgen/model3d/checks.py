@@ -12,7 +12,7 @@ from shapely.geometry import Polygon
 
 from sheetgen.design.part import Kit
 from sheetgen.geometry.placement import vec3
-from sheetgen.model3d.bodies import CONTACT_TOL_MM, MASS_TOL, Prism, SHARED_VOLUME_TOL_MM3, SWEEP_STEP_DEG, _aabb_gap, _aabb_overlap, _in_frame_of, _mesh_pairs, mesh_turns_deg, parallel_shared_volume_mm3, spun, sweep_angles
+from sheetgen.model3d.bodies import CONTACT_TOL_MM, MASS_TOL, MOTOR, Prism, SHARED_VOLUME_TOL_MM3, SWEEP_STEP_DEG, _aabb_gap, _aabb_overlap, _in_frame_of, _mesh_pairs, mesh_turns_deg, parallel_shared_volume_mm3, spun, sweep_angles
 from sheetgen.model3d.measures import _Measures
 from sheetgen.model3d.records import AssemblyReport, Interference, MassCheck, MeshCheck, SolidInfo, TabCheck
 from sheetgen.model3d.solids import Model, _occ_common_mm3, _volume_and_centre, build_model, prism_solid
@@ -126,7 +126,9 @@ def _mass(kit: Kit, model: Model) -> tuple[MassCheck, list[SolidInfo]]:
             # (the motor's shaft is drawn for the fit, weighed with the body)
             assert b.mass_kg is not None  # every component body carries the mass the kit gives
             mass = float(b.mass_kg)
-            _, centre = _volume_and_centre(model.piece_solids[(b.name, 0)])
+            # (a keyed axle, in two pieces, weighs as the whole rod)
+            _, centre = _volume_and_centre(model.piece_solids[(b.name, 0)] if b.name == MOTOR
+                                           else model.solids[b.name])
         infos.append(SolidInfo(b.name, b.source, "rotating" if b.rotating else "fixed", vol, mass))
         items.append((mass, centre, b.rotating))
     for c in kit.components:

@@ -143,7 +143,7 @@ def _subjects(kit: Kit, model: Model) -> list[_Subject]:
             tip = float(np.hypot(xy[:, 0], xy[:, 1]).max())
             wheels = frozenset(w for w, pn in MESHING if pn == name)
             out.append(_Subject(f"{b.name} (spinning)", b.name, Prism(disc(0.0, 0.0, tip), p.depth_mm, p.placement),
-                                CONTACT_TOL_MM, wheels | {MOTOR},
+                                CONTACT_TOL_MM, wheels | {MOTOR, name},  # its own glued layers too
                                 "the spinning pinion's tip circle touches nothing but the wheel and its shaft"))
     return out
 

@@ -16,7 +16,7 @@ from shapely.geometry import Polygon
 
 from sheetgen.geometry.joints import Edge, fit_clearance_mm
 from sheetgen.geometry.shapes import disc
-from sheetgen.design.part import Circle, Mark
+from sheetgen.design.part import Circle, Mark, Sprung
 from sheetgen.geometry.placement import Placement
 
 
@@ -53,6 +53,7 @@ class Blank:
     guides: tuple[Mark, ...] = ()
     # None: free rotation in steps of 90 degrees (or 0/180 on a grained sheet)
     rotations_deg: tuple[float, ...] | None = None
+    sprung: tuple[Sprung, ...] = ()  # spring fingers pressed down in the assembled kit
 
     def edge(self, name: str) -> Edge:
         return dict(self.edges)[name]

@@ -1,4 +1,8 @@
-"""Rings on the axle: the collar that holds it endwise, and spacer washers."""
+"""Rings on the axle: the collar that holds it endwise, and spacer washers.
+
+Both stay round: the collar grips the axle's round end (outside the flat, which
+runs from the -x rib to the +x end) and carries no torque; the spacers must turn
+freely against the supports, so their bores are loose (axle.bearing_clearance)."""
 
 from __future__ import annotations
 
@@ -11,7 +15,10 @@ Y, Z = (0.0, 1.0, 0.0), (0.0, 0.0, 1.0)
 
 
 def collar(spec, L: Layout, drive) -> Blank:
-    """Press-fit ring outside the -x support; with the wheel it stops the axle sliding."""
+    """Press-fit ring outside the -x support, keyed on the axle's flat (it turns with the axle);
+    with the wheel it stops the axle sliding."""
+    from sheetgen.design.parts.frame import keyed_bore
+
     d = spec.axle.diameter_mm
     od = d + 2 * max(4.0, 1.5 * L.t_mm)
     x = -L.support_x_mm - 2 * L.t_mm
@@ -19,8 +26,8 @@ def collar(spec, L: Layout, drive) -> Blank:
         name="collar",
         outline=disc(0.0, 0.0, od / 2),
         placements=(place(Y, Z, (x, 0.0, 0.0), rotating=True),),
-        description="press-fit ring; keeps the axle from sliding out",
-        holes=(round_hole(0.0, 0.0, d, fit="press"),),
+        description="press-fit ring keyed on the axle's flat; keeps the axle from sliding out",
+        holes=(keyed_bore(spec, L),),
     )
 
 

@@ -47,8 +47,11 @@ def _gear_blank(name, geometry, bore: Hole, placements, description):
 def wheel(spec, L: Layout, drive) -> Blank:
     t = L.t_mm
     placements = tuple(place(Y, Z, (L.wheel_x_mm + i * t, 0.0, 0.0), rotating=True) for i in range(L.gear_layers))
-    return _gear_blank("wheel", drive.wheel, round_hole(0.0, 0.0, spec.axle.diameter_mm, fit="press"), placements,
-                       f"gear wheel, {spec.drive.wheel_teeth} teeth, press fit on the axle; glue the layers")
+    from sheetgen.design.parts.frame import keyed_bore
+
+    return _gear_blank("wheel", drive.wheel, keyed_bore(spec, L), placements,
+                       f"gear wheel, {spec.drive.wheel_teeth} teeth, keyed on the axle's flat (D-bore, press fit); "
+                       "glue the layers")
 
 
 def pinion(spec, L: Layout, drive) -> Blank:

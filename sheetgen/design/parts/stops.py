@@ -21,7 +21,7 @@ from sheetgen.geometry.joints import Edge
 from sheetgen.geometry.shapes import disc, one_polygon, rect, segments_for_arc
 from sheetgen.design.layout import Layout
 from sheetgen.geometry.placement import place
-from sheetgen.design.parts import Blank, round_hole
+from sheetgen.design.parts import Blank
 
 Y, Z = (0.0, 1.0, 0.0), (0.0, 0.0, 1.0)
 
@@ -45,7 +45,9 @@ def sector(r_mm: float, half_angle_deg: float) -> Polygon:
 
 
 def stop_arm(spec, L: Layout, drive) -> Blank:
-    """Turns with the axle; its lug's edges meet the end stop at +-site.travel_limit."""
+    """Turns with the axle (keyed on its flat); its lug's edges meet the end stop at +-site.travel_limit."""
+    from sheetgen.design.parts.frame import keyed_bore
+
     lug = Polygon([(0.0, 0.0), _down(-L.stop_half_angle_deg, L.stop_arm_r_mm),
                    _down(L.stop_half_angle_deg, L.stop_arm_r_mm)])
     outline = one_polygon(disc(0.0, 0.0, L.stop_hub_r_mm).union(lug), "stop-arm outline")
@@ -53,8 +55,8 @@ def stop_arm(spec, L: Layout, drive) -> Blank:
         name="stop-arm",
         outline=outline,
         placements=(place(Y, Z, (L.stop_x_mm, 0.0, 0.0), rotating=True),),
-        description="turns with the axle; meets the end stop at the travel limit",
-        holes=(round_hole(0.0, 0.0, spec.axle.diameter_mm, fit="press"),),
+        description="keyed on the axle's flat; meets the end stop at the travel limit",
+        holes=(keyed_bore(spec, L),),  # the stop torque goes through the axle's flat
     )
 
 

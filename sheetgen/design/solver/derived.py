@@ -3,7 +3,7 @@
 
 from __future__ import annotations
 
-from sheetgen.design.solver.rules import RULE_BY_NAME
+from sheetgen.design.solver.rules import FRAME_RULE_DOCS, RULE_BY_NAME
 
 
 # ---------------------------------------------------------------------------
@@ -22,6 +22,8 @@ FIGURE_RULES = (
      "the base runs under both supports, the wheel and the motor"),
     ("layout.shaft_end_gap_mm", "shaft_end_gap_mm", "motor_shaft_reach",
      "gap from the motor shaft's end to the drive-side support"),
+    ("layout.clamp_fingers", "clamp_fingers", "clamp_stack", FRAME_RULE_DOCS["clamp_stack"]),
+    ("layout.axle_flat_mm", "axle_flat_mm", "axle_keyed", FRAME_RULE_DOCS["axle_keyed"]),
 )
 
 
@@ -34,7 +36,7 @@ def derived_values(spec, kit=None, balance=None) -> dict:
         figures = dict(kit.figures)
         rim = next((p.qty for p in kit.parts if p.name == "rim"), None)
         if rim is not None:
-            out["layout.rim_layers"] = {"value": rim, "rule": "rim_matches_panel"}
+            out["layout.rim_layers"] = {"value": rim, "rule": "clamp_stack"}
         for key, fig, rule, _ in FIGURE_RULES:
             if fig in figures:
                 out[key] = {"value": _json_num(figures[fig]), "rule": rule}
@@ -58,8 +60,7 @@ def rule_doc(name: str) -> str:
     for _, _, rule, doc in FIGURE_RULES:
         if rule == name:
             return doc
-    return {"rim_matches_panel": "as many rim layers as the panel is thick (rounded up)",
-            "counterweight_balance": "the mass and place that balance the frame, from the balance check"}.get(name, "")
+    return FRAME_RULE_DOCS.get(name, "")
 
 
 def derived_lines(spec, kit=None, balance=None) -> list[str]:

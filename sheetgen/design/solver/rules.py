@@ -355,3 +355,16 @@ RULES: tuple[Rule, ...] = (
 )
 RULE_BY_NAME = {r.name: r for r in RULES}
 LOAD_KEYS = frozenset({"drive.module", "drive.layers", "drive.wheel_teeth"})  # set from the load torque
+
+
+# ---------------------------------------------------------------------------
+# rules of the kit's figures that have no key of their own (set in
+# sheetgen/design/layout.py and sheetgen/design/parts/counterweight.py, named here
+# so the derived values say by which rule)
+
+FRAME_RULE_DOCS = {
+    "clamp_stack": "whole rim layers when the panel is that thick (to 0.2 mm); else one more, and spring fingers in "
+                   "the bezel",
+    "axle_keyed": "a flat 0.9 d across from the -x rib to the +x end; the parts that turn with it have D-bores",
+    "counterweight_balance": "a steel bar opposite the bare frame's CG, on a bracket beside the +x rib",
+}
