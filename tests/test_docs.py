@@ -25,3 +25,8 @@ def test_readme_starts_with_the_job_then_two_commands():
     command = blocks[3].strip().split("&&")[-1].strip()
     assert command.startswith("python -m pytest")
     assert any(line.strip() == command for line in ci.splitlines()), (command, ci)
+
+
+def test_the_demo_parameters_are_the_shipped_demo():
+    # `sheetgen build` without PARAMS runs sheetgen/data/demo.toml; params/demo.toml must be the same file
+    assert (ROOT / "params" / "demo.toml").read_bytes() == (ROOT / "sheetgen" / "data" / "demo.toml").read_bytes()
