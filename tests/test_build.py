@@ -132,7 +132,7 @@ def test_report_renders_in_headless_chromium(out, tmp_path):
     shot = tmp_path / "report.png"
     subprocess.run([browser, "--headless", "--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run",
                     "--disable-background-networking", "--disable-component-update", "--disable-sync",
-                    f"--user-data-dir={tmp_path / 'profile'}", "--hide-scrollbars", "--window-size=1200,2400",
+                    f"--user-data-dir={tmp_path / 'profile'}", "--hide-scrollbars", "--window-size=1200,8000",  # the whole report, tables and sheets
                     f"--screenshot={shot}", (out / "report.html").as_uri()],
                    check=True, capture_output=True, timeout=120)
     from PIL import Image

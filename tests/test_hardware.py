@@ -194,14 +194,15 @@ def test_fastener_counts_match_the_holes_in_the_part_dxfs(demo_build_3, demo_spe
             assert d >= rod_min, f"a {d} mm hole has no fastener"
     for s in by_size:
         assert any(abs(s - d) < 2e-3 for d in holes), s
-    # the demo: 4 frame bolts, 4 base anchors, 2 motor screws; a nut per bolt; a washer each side
-    # of a bolt and under every screw head
+    # the demo: 4 frame bolts and the counterweight bar's screw, 4 base anchors, no motor screws
+    # (the motor's box of plates clamps its body); a nut per bolt; a washer each side of a bolt
+    # and under every screw head
     count = {h["item"]: 0 for h in summary["hardware"]}
     for h in summary["hardware"]:
         count[h["item"]] += h["qty_per_kit"]
-    assert (count["bolt"], count["anchor screw"], count["motor screw"]) == (4, 4, 2)
+    assert (count["bolt"], count["anchor screw"], count.get("motor screw", 0)) == (5, 4, 0)
     assert count["nut"] == count["bolt"]
-    assert count["washer"] == 2 * count["bolt"] + count["anchor screw"] + count["motor screw"]
+    assert count["washer"] == 2 * count["bolt"] + count["anchor screw"] + count.get("motor screw", 0)
     for h in summary["hardware"]:
         assert h["qty_total"] == h["qty_per_kit"] * summary["kits"]
 
@@ -209,7 +210,7 @@ def test_fastener_counts_match_the_holes_in_the_part_dxfs(demo_build_3, demo_spe
 def test_every_bought_item_is_listed(demo_build_3, demo_spec):
     folder, summary = demo_build_3
     items = {h["item"] for h in summary["hardware"]}
-    assert {"axle rod", "bolt", "nut", "washer", "anchor screw", "motor screw", "gear-motor", "panel",
+    assert {"axle rod", "bolt", "nut", "washer", "anchor screw", "gear-motor", "panel",
             "counterweight"} <= items
     motor = next(h for h in summary["hardware"] if h["item"] == "gear-motor")
     m = demo_spec.motor

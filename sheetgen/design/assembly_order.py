@@ -33,8 +33,9 @@ from shapely.geometry import LineString, Point, Polygon
 
 from sheetgen.design.part import Component, Kit
 from sheetgen.geometry.placement import Placement, mat3
-from sheetgen.geometry.shapes import disc
+from sheetgen.geometry.shapes import d_shape, disc
 
+SLIVER_MM = 0.02  # overlaps of shadows thinner than twice this are a bore on its rod (outlines' chords within 0.01 mm)
 EPS_MM = 1e-4  # overlaps along a line shorter than this are contact, not collision
 AREA_EPS_MM2 = 1e-3  # shadows sharing less area than this only touch
 FAR_MM = 1e5
@@ -107,7 +108,14 @@ def _component_prisms(comp: Component, kit: Kit) -> tuple[Prism, ...]:
         length, diameter, _ = comp.size_mm
         rod = disc(0.0, 0.0, diameter / 2)  # the polygon the bores are cut from: a press bore meets it face to face
         r = mat3([[0.0, 0.0, 1.0], [1.0, 0.0, 0.0], [0.0, 1.0, 0.0]])  # local x -> kit y, y -> z, z -> x
-        return (Prism(rod, length, Placement(r, (cx - length / 2, cy, cz))),)
+        x0, x1 = cx - length / 2, cx + length / 2
+        if comp.flat_mm > 0:  # a keyed rod: the D profile the keyed bores are cut from, and its round length
+            xf = min(max(comp.flat_from_x_mm, x0), x1)
+            pieces = [Prism(d_shape(0.0, 0.0, diameter, comp.flat_mm), x1 - xf, Placement(r, (xf, cy, cz)))]
+            if xf > x0 + 1e-9:
+                pieces.append(Prism(rod, xf - x0, Placement(r, (x0, cy, cz))))
+            return tuple(pieces)
+        return (Prism(rod, length, Placement(r, (x0, cy, cz))),)
     return ()  # a point mass has no shape to collide
 
 
@@ -246,7 +254,7 @@ class _Blocking:
         ia, ib = self.items[a], self.items[b]
         for pa, sa in zip(ia.pieces, self.shadows(a, k)):
             for pb, sb in zip(ib.pieces, self.shadows(b, k)):
-                common = sa.intersection(sb)
+                common = sa.intersection(sb).buffer(-SLIVER_MM)
                 if common.area < AREA_EPS_MM2:
                     continue
                 for u, v in _samples(common):
@@ -264,7 +272,7 @@ class _Blocking:
             e1, e2 = _basis(d)
             for pa, sa in zip(self.items[a].pieces, self.shadows(a, k)):
                 for pb, sb in zip(self.items[b].pieces, self.shadows(b, k)):
-                    common = sa.intersection(sb)
+                    common = sa.intersection(sb).buffer(-SLIVER_MM)
                     if common.area < AREA_EPS_MM2:
                         continue
                     for u, v in _samples(common):

@@ -372,7 +372,11 @@ def motor_floor_height_mm(spec, centre_distance_mm: float) -> float:
     drive.pinion_angle from straight down."""
     pinion_z = -centre_distance_mm * math.cos(math.radians(spec.drive.pinion_angle_deg))
     margin = max(MOTOR_BODY_MARGIN_MM, motor_web_mm(spec.sheet.thickness_mm))
-    return -(pinion_z - spec.motor.body_height_mm / 2 - margin) + MOTOR_BASE_GAP_MM
+    body = -(pinion_z - spec.motor.body_height_mm / 2 - margin) + MOTOR_BASE_GAP_MM
+    # the pinion's tip circle off the base too: d_a = m (z + 2 + 2x) (ISO 21771, the tip not shortened)
+    d = spec.drive
+    tip_r = d.module_mm * (d.pinion_teeth + 2.0 + 2.0 * d.pinion_shift) / 2.0
+    return max(body, -(pinion_z - tip_r) + MOTOR_BASE_GAP_MM)
 
 
 # ---------------------------------------------------------------------------

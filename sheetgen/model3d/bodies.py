@@ -10,7 +10,7 @@ from dataclasses import dataclass
 import numpy as np
 import shapely
 from shapely import affinity
-from shapely.geometry import MultiPoint, Polygon
+from shapely.geometry import MultiPoint, Point, Polygon
 
 from sheetgen.errors import GeometryBug, ParameterError
 from sheetgen.geometry.shapes import GRID_MM, d_shape, disc, one_polygon, rect
@@ -280,8 +280,8 @@ def turns_in_place(body: Body) -> bool:
                 round_r.append(float(r.max()))
             elif k > 0:
                 continue  # a bore's shape (a keyed D-bore): only the rod inside meets it, and turns with it
-            elif body.kind == "component" and r.min() > 0.5 * r.max():
-                keyed.append(float(r.max()))  # a keyed rod's D profile
+            elif body.kind == "component" and Polygon(ring).contains(Point(0.0, 0.0)) and r.min() > 0.5 * r.max():
+                keyed.append(float(r.max()))  # a keyed rod's D profile, about the axle
             else:
                 return False
     # a rod keyed its whole length is one D piece: its flat lies inside its circle, and the

@@ -98,12 +98,10 @@ def plan_counterweight(spec, L: Layout, parts: tuple[Part, ...],
     density = sheet_material(spec.sheet.material).density_kg_m3
     d = spec.axle.diameter_mm
     bolt = spec.frame.bolt_diameter_mm
-    rb = (d / 2 + L.hub_r_mm) / 2
-    # two bolts through both hubs, level either side of the axle (the same holes whatever the
-    # counterweight's direction, so the rib changes only with the hub)
+    # no bolts through the rib: both ribs are one part, so holes for the bracket would leave two
+    # idle holes in the -x rib; the keyed press-fit bore carries the bar's torque and the rib's
+    # face stops the bracket along the axle
     bolts: tuple[tuple[float, float], ...] = ()
-    if bolt > 0 and rb - bolt / 2 - d / 2 >= BOLT_MATERIAL_MM and L.hub_r_mm - rb - bolt / 2 >= BOLT_MATERIAL_MM:
-        bolts = ((rb, 0.0), (-rb, 0.0))
     from sheetgen.design.parts.frame import keyed_bore
 
     bore = keyed_bore(spec, L)
