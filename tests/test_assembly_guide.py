@@ -16,8 +16,6 @@ from __future__ import annotations
 
 import base64
 import re
-import shutil
-import subprocess
 from html.parser import HTMLParser
 
 import numpy as np
@@ -28,6 +26,7 @@ from hypothesis import strategies as st
 
 from tests import _refs as R
 from tests.conftest import DEMO, PARAMS
+from tests._browser import screenshot
 
 INSET_MM = 0.05
 GRID_MM = 1.0
@@ -295,18 +294,7 @@ def test_guide_is_the_same_bytes_for_the_same_kit(out, tmp_path):
 
 
 def test_guide_renders_in_headless_chromium(out, tmp_path):
-    browser = shutil.which("chromium") or shutil.which("chromium-browser")
-    if not browser:
-        pytest.skip("chromium is not installed (apt-get install chromium; .ci/run installs it)")
-    shot = tmp_path / "guide.png"
-    subprocess.run([browser, "--headless", "--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run",
-                    "--disable-background-networking", "--disable-component-update", "--disable-sync",
-                    f"--user-data-dir={tmp_path / 'profile'}", "--hide-scrollbars", "--window-size=1000,3000",
-                    f"--screenshot={shot}", (out / "assembly.html").as_uri()],
-                   check=True, capture_output=True, timeout=120)
-    from PIL import Image
-
-    img = np.asarray(Image.open(shot).convert("RGB")).astype(int)
+    img = screenshot(out / "assembly.html", tmp_path, 1000, 3000)
     assert img.std() > 20, "the screenshot is blank"
     r, g, b = img[..., 0], img[..., 1], img[..., 2]
     new_parts = (abs(r - 0xD9) < 30) & (abs(g - 0x48) < 30) & (abs(b - 0x0F) < 30)  # the highlight colour

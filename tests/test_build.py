@@ -4,16 +4,14 @@ from __future__ import annotations
 
 import itertools
 import json
-import shutil
-import subprocess
 
-import numpy as np
 import pytest
 from click.testing import CliRunner
 
 from sheetgen.cli import main
 from tests.conftest import DEMO
 from tests.dxfread import read_cut_contours
+from tests._browser import screenshot
 
 KITS = 3
 
@@ -126,18 +124,7 @@ def test_report_is_self_contained_and_carries_the_cautions(out):
 
 def test_report_renders_in_headless_chromium(out, tmp_path):
     # A real browser (Debian's chromium, installed by .ci/run) draws the page; we look at the pixels.
-    browser = shutil.which("chromium") or shutil.which("chromium-browser")
-    if not browser:
-        pytest.skip("chromium is not installed (apt-get install chromium; .ci/run installs it)")
-    shot = tmp_path / "report.png"
-    subprocess.run([browser, "--headless", "--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run",
-                    "--disable-background-networking", "--disable-component-update", "--disable-sync",
-                    f"--user-data-dir={tmp_path / 'profile'}", "--hide-scrollbars", "--window-size=1200,8000",  # the whole report, tables and sheets
-                    f"--screenshot={shot}", (out / "report.html").as_uri()],
-                   check=True, capture_output=True, timeout=120)
-    from PIL import Image
-
-    img = np.asarray(Image.open(shot).convert("RGB")).astype(int)
+    img = screenshot(out / "report.html", tmp_path, 1200, 8000)  # the whole report, tables and sheets
     assert img.shape[0] >= 2000 and img.shape[1] >= 1000
     assert img.std() > 20, "the screenshot is blank"
     r, g, b = img[..., 0], img[..., 1], img[..., 2]

@@ -11,13 +11,12 @@ from __future__ import annotations
 
 import math
 import re
-import shutil
-import subprocess
 import xml.etree.ElementTree as ET
 
 import numpy as np
 
 from sheetgen.mechanics import plots, tracking
+from tests._browser import screenshot
 
 NS = {"svg": "http://www.w3.org/2000/svg"}
 
@@ -99,8 +98,6 @@ def test_plots_are_deterministic_and_ids_are_prefixed():
 def test_plots_render_in_headless_chromium(tmp_path):
     # Debian's chromium (installed by .ci/run) draws a page holding the three plots; the
     # series colours show up in the pixels
-    browser = shutil.which("chromium") or shutil.which("chromium-browser")
-    assert browser, "chromium is needed for this test (apt-get install chromium; .ci/run does it)"
     y = tracking.year_tracking(47.2, "horizontal", 60.0)
     curves = [(d.name, *d.curve(y.axle, y.latitude_deg)) for d in y.days]
     a = np.linspace(-60, 60, 25)
@@ -112,14 +109,7 @@ def test_plots_render_in_headless_chromium(tmp_path):
     page = tmp_path / "plots.html"
     page.write_text(f"<!DOCTYPE html><html><body style='margin:0;background:#fff'>{body}</body></html>",
                     encoding="utf-8")
-    shot = tmp_path / "plots.png"
-    subprocess.run([browser, "--headless", "--no-sandbox", "--disable-gpu", "--no-first-run",
-                    "--disable-background-networking", "--disable-component-update", "--disable-sync",
-                    f"--user-data-dir={tmp_path / 'profile'}", "--hide-scrollbars", "--window-size=800,1200",
-                    f"--screenshot={shot}", page.as_uri()], check=True, capture_output=True, timeout=120)
-    from PIL import Image
-
-    img = np.asarray(Image.open(shot).convert("RGB")).astype(int)
+    img = screenshot(page, tmp_path, 800, 1200)
 
     def count(hexcol, tol=40):
         c = [int(hexcol[i:i + 2], 16) for i in (1, 3, 5)]

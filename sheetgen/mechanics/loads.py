@@ -230,6 +230,14 @@ def tipping_figures(wind_force_N: float, force_height_mm: float, kit_mass_kg: fl
             if m > best_m:
                 best_t, best_m = t, m
     overturning = safety * wind_force_N * best_m
+    return _tipping(wind_force_N, force_height_mm, kit_mass_kg, cg_lever_mm, uplift_lever_mm, ballast_lever_mm,
+                    overturning, float(best_t))
+
+
+def _tipping(wind_force_N: float, force_height_mm: float, kit_mass_kg: float, cg_lever_mm: float,
+             uplift_lever_mm: float, ballast_lever_mm: float, overturning: float, angle_deg: float) -> TippingFigures:
+    """The kit's weight on its lever against the overturning moment; the ballast at its lever
+    that makes up the shortfall (none when the weight suffices, infinite with no lever)."""
     restoring = kit_mass_kg * G_M_S2 * cg_lever_mm * 1e-3
     short = overturning - restoring
     if short <= 0:
@@ -239,7 +247,7 @@ def tipping_figures(wind_force_N: float, force_height_mm: float, kit_mass_kg: fl
     else:
         ballast = math.inf
     return TippingFigures(wind_force_N, force_height_mm, cg_lever_mm, uplift_lever_mm, ballast_lever_mm,
-                          overturning, restoring, ballast, float(best_t))
+                          overturning, restoring, ballast, angle_deg)
 
 
 def tipping_along_axle_figures(wind_force_N: float, force_height_mm: float, tilt_deg: float, kit_mass_kg: float,
@@ -253,13 +261,5 @@ def tipping_along_axle_figures(wind_force_N: float, force_height_mm: float, tilt
     a = math.radians(tilt_deg)
     arm_mm = math.sin(a) * force_height_mm + math.cos(a) * uplift_lever_mm
     overturning = safety * wind_force_N * arm_mm * 1e-3
-    restoring = kit_mass_kg * G_M_S2 * cg_lever_mm * 1e-3
-    short = overturning - restoring
-    if short <= 0:
-        ballast = 0.0
-    elif ballast_lever_mm > 0:
-        ballast = short / (G_M_S2 * ballast_lever_mm * 1e-3)
-    else:
-        ballast = math.inf
-    return TippingFigures(wind_force_N, force_height_mm, cg_lever_mm, uplift_lever_mm, ballast_lever_mm,
-                          overturning, restoring, ballast, 0.0)
+    return _tipping(wind_force_N, force_height_mm, kit_mass_kg, cg_lever_mm, uplift_lever_mm, ballast_lever_mm,
+                    overturning, 0.0)
