@@ -37,6 +37,10 @@ from sheetgen.production.nesting import (
 from sheetgen.production.nesting.nfp import clearance_outline, no_fit_polygon
 
 TOL = 1e-6
+# A wall-clock ceiling far above what the work budget (effort) takes, so that the
+# layout depends on the seed and effort only, never on the load of the machine
+# (a loaded CI machine once hit a 0.3 s ceiling and laid the same run out two ways).
+CEILING_S = 120.0
 
 
 # ---------------------------------------------------------------- helpers
@@ -160,7 +164,8 @@ def test_random_parts_are_nested_without_overlap(specs, margin, spacing, seed):
     items = [NestItem(f"p{i}", poly, qty, rots) for i, (poly, qty, rots) in enumerate(specs)]
     size = max(max(p.bounds[2] - p.bounds[0], p.bounds[3] - p.bounds[1]) for p, _, _ in specs)
     sheet = (size + 2 * margin + 40, size + 2 * margin + 10)
-    result = nest(items, sheet_mm=sheet, margin_mm=margin, spacing_mm=spacing, time_limit_s=0.1, seed=seed)
+    result = nest(items, sheet_mm=sheet, margin_mm=margin, spacing_mm=spacing, effort=0.18,
+                    time_limit_s=CEILING_S, seed=seed)
     verify(result, items)
     independent_check(result, items, margin, spacing)
     assert not result.unplaced
@@ -176,7 +181,7 @@ def test_small_part_goes_into_the_window_of_a_frame(window, spacing, fill):
     outer = window + 30
     side = (window - 2 * spacing) * fill
     items = [NestItem("frame", frame(outer, window), 1, (0.0,)), NestItem("square", box(0, 0, side, side), 1, (0.0,))]
-    result = nest(items, sheet_mm=(outer, outer), spacing_mm=spacing, time_limit_s=0.1)
+    result = nest(items, sheet_mm=(outer, outer), spacing_mm=spacing, effort=0.18, time_limit_s=CEILING_S)
     verify(result, items)
     assert len(result.sheets) == 1
     fr = next(p for p in result.sheets[0] if p.item == 0)
@@ -187,7 +192,7 @@ def test_small_part_goes_into_the_window_of_a_frame(window, spacing, fill):
 def test_square_too_big_for_the_window_takes_a_second_sheet():
     # Source: arithmetic: 50 mm window, 2 mm spacing: room for 46 mm, not 47.
     items = [NestItem("frame", frame(80, 50), 1, (0.0,)), NestItem("square", box(0, 0, 47, 47), 1, (0.0,))]
-    result = nest(items, sheet_mm=(80, 80), spacing_mm=2, time_limit_s=0.1)
+    result = nest(items, sheet_mm=(80, 80), spacing_mm=2, effort=0.18, time_limit_s=CEILING_S)
     verify(result, items)
     assert len(result.sheets) == 2
     assert result.area_lower_bound_sheets == 1
@@ -197,7 +202,7 @@ def test_strip_of_rectangles_reaches_the_area_bound():
     # Source: area / width lower bound (common practice): 4 x (10 x 20) in a
     # 20-wide strip tile exactly, length 40.
     items = [NestItem("r", box(0, 0, 20, 10), 4, (0.0, 90.0))]
-    result = nest(items, strip_width_mm=20, time_limit_s=0.2)
+    result = nest(items, strip_width_mm=20, effort=0.36, time_limit_s=CEILING_S)
     verify(result, items)
     assert result.strip_length_mm == pytest.approx(40.0, abs=1e-5)
     assert result.sheet_size_mm == (pytest.approx(40.0, abs=1e-5), 20.0)
@@ -208,7 +213,7 @@ def test_strip_of_rectangles_reaches_the_area_bound():
 def test_strip_mode_with_margin():
     # Source: definitions (length = rightmost contour + margin).
     items = [NestItem("r", box(0, 0, 10, 10), 3, (0.0,))]
-    result = nest(items, strip_width_mm=30, margin_mm=5, spacing_mm=1, time_limit_s=0.1)
+    result = nest(items, strip_width_mm=30, margin_mm=5, spacing_mm=1, effort=0.18, time_limit_s=CEILING_S)
     verify(result, items)
     independent_check(result, items, 5, 1)
     # usable width 30 - 2 x 5 = 20 holds one 10 mm square across (10 + 1 + 10 > 20): a row of three
@@ -219,7 +224,7 @@ def test_sheets_remnant_and_lower_bound():
     # Source: area bound (common practice): 6 squares of 30 mm on 100 x 50: 5400 mm2
     # over a usable 5000 mm2 -> at least 2 sheets; only 3 fit per sheet.
     items = [NestItem("sq", box(0, 0, 30, 30), 6, (0.0,))]
-    result = nest(items, sheet_mm=(100, 50), spacing_mm=2, time_limit_s=0.1)
+    result = nest(items, sheet_mm=(100, 50), spacing_mm=2, effort=0.18, time_limit_s=CEILING_S)
     verify(result, items)
     assert result.area_lower_bound_sheets == 2
     assert len(result.sheets) == 2
@@ -234,10 +239,11 @@ def test_same_seed_same_layout_and_progress_reported():
     items = [NestItem("ell", Polygon([(0, 0), (30, 0), (30, 10), (10, 10), (10, 30), (0, 30)]), 5,
                       (0.0, 90.0, 180.0, 270.0)), NestItem("tri", Polygon([(0, 0), (25, 0), (0, 20)]), 4, (0.0, 180.0))]
     seen = []
-    a = nest(items, sheet_mm=(80, 60), spacing_mm=1, time_limit_s=0.3, seed=7,
+    a = nest(items, sheet_mm=(80, 60), spacing_mm=1, effort=0.54, time_limit_s=CEILING_S, seed=7,
              progress=lambda f, msg: seen.append((f, msg)))
-    b = nest(items, sheet_mm=(80, 60), spacing_mm=1, time_limit_s=0.3, seed=7)
+    b = nest(items, sheet_mm=(80, 60), spacing_mm=1, effort=0.54, time_limit_s=CEILING_S, seed=7)
     key = lambda r: [[(p.item, p.copy, p.x_mm, p.y_mm, p.angle_deg) for p in s] for s in r.sheets]  # noqa: E731
+    assert a.stopped_by != "time_limit" and b.stopped_by != "time_limit"
     assert key(a) == key(b)
     assert seen and all(0.0 <= f <= 1.0 for f, _ in seen) and seen[-1][0] == 1.0
 
@@ -346,7 +352,7 @@ def test_bound_counts_squares_that_cannot_share_a_sheet():
     # area (10,800 mm2) fits in 2 sheets (10,000 mm2 each).
     items = [NestItem("sq", box(0, 0, 60, 60), 3, (0.0, 90.0))]
     assert lower_bound_sheets(items, (100, 100), 0, 0) == 3
-    result = nest(items, sheet_mm=(100, 100), time_limit_s=0.1)
+    result = nest(items, sheet_mm=(100, 100), effort=0.18, time_limit_s=CEILING_S)
     assert len(result.sheets) == 3 and result.lower_bound_sheets == 3
     assert result.area_lower_bound_sheets == 2
 
@@ -357,7 +363,7 @@ def test_bound_counts_the_spacing_between_neighbours():
     # (49.1 + 2 + 49.1 = 100.2 > 100), so four of them need four sheets.
     fit = [NestItem("sq", box(0, 0, 49, 49), 4, (0.0,))]
     assert lower_bound_sheets(fit, (100, 100), 0, 2) == 1
-    assert len(nest(fit, sheet_mm=(100, 100), spacing_mm=2, time_limit_s=0.2).sheets) == 1
+    assert len(nest(fit, sheet_mm=(100, 100), spacing_mm=2, effort=0.36, time_limit_s=CEILING_S).sheets) == 1
     wide = [NestItem("sq", box(0, 0, 49.1, 49.1), 4, (0.0,))]
     assert lower_bound_sheets(wide, (100, 100), 0, 2) == 4
 
@@ -370,7 +376,7 @@ def test_bound_counts_a_window_only_for_the_parts_that_fit_it():
     items = [NestItem("frame", frame(100, 90), 1, (0.0,)), NestItem("sq", box(0, 0, 50, 50), 1, (0.0,)),
              NestItem("bar", box(0, 0, 95, 10), 1, (0.0, 90.0))]
     assert lower_bound_sheets(items, (100, 100), 0, 0) == 2
-    result = nest(items, sheet_mm=(100, 100), time_limit_s=0.2)
+    result = nest(items, sheet_mm=(100, 100), effort=0.36, time_limit_s=CEILING_S)
     verify(result, items)
     assert len(result.sheets) == 2 and result.lower_bound_sheets == 2 and result.area_lower_bound_sheets == 1
 
