@@ -2,7 +2,6 @@
 (branch and bound on the projection bound; see the package notes)."""
 
 from __future__ import annotations
-from __future__ import annotations
 
 import math
 from dataclasses import dataclass
@@ -10,9 +9,10 @@ from dataclasses import dataclass
 import numpy as np
 import shapely
 from shapely import affinity
+from shapely.geometry import MultiPoint, Polygon
 
 from sheetgen.design.kit import MESHING, STOPS
-from sheetgen.model3d.bodies import CLOSEST_PAIRS, CONTACT_TOL_MM, SHARED_VOLUME_TOL_MM3, _x_gap, _x_overlap, turns_in_place
+from sheetgen.model3d.bodies import CLOSEST_PAIRS, Prism, CONTACT_TOL_MM, SHARED_VOLUME_TOL_MM3, _x_gap, _x_overlap, turns_in_place
 from sheetgen.model3d.measures import _Measures, distance_bound_mm
 from sheetgen.model3d.records import Clearance, Collision, Touch
 from sheetgen.model3d.solids import Model
@@ -30,6 +30,57 @@ class _SweepTables:
     x_gap: np.ndarray  # (pairs,)
 
 
+SLABS = 12  # a plate not across the axle is seen along x in at most this many slices (a tighter bound)
+
+
+def x_slabs(prism: Prism, count: int = SLABS) -> list[tuple[Polygon, tuple[float, float]]]:
+    """The prism seen along x, slice by slice: for each of ``count`` slabs of its
+    x range, a polygon that holds the y-z projection of the prism's points in
+    the slab, and the slab. A plate across the axle is one exact slice.
+
+    The points of the plate with x in [s0, s1] have local (u, v) in the strip
+    s0 - w_hi <= m00 u + m01 v + t0 <= s1 - w_lo (w the part of x its depth
+    adds); the hull of the outline clipped to that strip, on both faces,
+    holds their projection. Slabs meet at vertices along x, so that a tab
+    standing out of a plate's edge is a slice of its own."""
+    x0, x1 = prism.x_range_mm()
+    if prism.axial or count <= 1 or x1 - x0 <= 1e-9:
+        return [(prism.yz_projection(), (x0, x1))]
+    m, t = prism.placement.matrix, np.asarray(prism.placement.translation_mm, dtype=float)
+    w_lo, w_hi = sorted((0.0, float(m[0, 2]) * prism.depth_mm))
+    # slab edges where the outline's vertices lie along x (a tab, a step), thinned to ``count`` slabs
+    xs = np.unique(np.round(prism.corners()[:, 0], 6))
+    if len(xs) > count + 1:
+        xs = xs[np.unique(np.round(np.linspace(0, len(xs) - 1, count + 1)).astype(int))]
+    edges = np.unique(np.concatenate([[x0], xs, [x1]]))
+    out = []
+    big = 1e6
+    for s0, s1 in zip(edges[:-1], edges[1:]):
+        lo, hi = s0 - w_hi - t[0], s1 - w_lo - t[0]
+        a, b = float(m[0, 0]), float(m[0, 1])
+        norm = math.hypot(a, b)
+        if norm < 1e-12:  # x comes from the depth alone: every slice sees the whole outline
+            return [(prism.yz_projection(), (x0, x1))]
+        # the strip lo <= a u + b v <= hi in the local plane, as a long rectangle
+        d = np.array([a, b]) / norm
+        e = np.array([-d[1], d[0]])
+        corners = [d * lo / norm + e * big, d * hi / norm + e * big, d * hi / norm - e * big, d * lo / norm - e * big]
+        cut = prism.outline.intersection(Polygon(corners))
+        # the areal parts only: a point on a slab's edge is the limit of inner points of
+        # the slab on one side, and the closure of that slab's area holds it
+        areal = [g for g in getattr(cut, "geoms", [cut]) if isinstance(g, Polygon) and g.area > 0.0]
+        if not areal:
+            continue
+        xy = np.vstack([shapely.get_coordinates(g) for g in areal])
+        local = np.vstack([np.column_stack([xy, np.zeros(len(xy))]),
+                           np.column_stack([xy, np.full(len(xy), prism.depth_mm)])])
+        hull = MultiPoint(prism.placement.apply(local)[:, 1:]).convex_hull
+        if not isinstance(hull, Polygon):
+            hull = hull.buffer(1e-9)
+        out.append((hull, (float(s0), float(s1))))
+    return out or [(prism.yz_projection(), (x0, x1))]
+
+
 def _sweep_tables(bodies, turning, fixed, angles, meshing) -> _SweepTables:
     pairs = [(i, j) for i in turning for j in fixed if (bodies[i].source, bodies[j].source) not in meshing]
     t_pieces = [(i, k, p) for i in turning for k, p in enumerate(bodies[i].pieces)]
@@ -41,11 +92,11 @@ def _sweep_tables(bodies, turning, fixed, angles, meshing) -> _SweepTables:
     for n, (i, j) in enumerate(pairs):
         for kb, pb in enumerate(bodies[j].pieces):
             if (j, kb) not in fixed_cache:
-                fixed_cache[(j, kb)] = (pb.yz_projection(), pb.x_range_mm(), pb.axial)
-            proj_b, range_b, axial_b = fixed_cache[(j, kb)]
-            for ka, pa in enumerate(bodies[i].pieces):
-                tn = t_index[(i, ka)]
-                entries.append((n, tn, proj_b, _x_gap(t_range[tn], range_b), pa.axial and axial_b))
+                fixed_cache[(j, kb)] = x_slabs(pb)
+            for proj_b, range_b in fixed_cache[(j, kb)]:
+                for ka, pa in enumerate(bodies[i].pieces):
+                    tn = t_index[(i, ka)]
+                    entries.append((n, tn, proj_b, _x_gap(t_range[tn], range_b), pa.axial and pb.axial))
     lb = np.full((len(pairs), len(angles)), np.inf)
     exact = np.zeros((len(pairs), len(angles)), dtype=bool)
     x_gap = np.array([_x_gap(bodies[i].x_range_mm(), bodies[j].x_range_mm()) for i, j in pairs])
