@@ -26,6 +26,7 @@ from sheetgen.production.nesting.improve import sheet_search
 NON_LAST_SHARE = 4           # a batch that is repeated gets 1/NON_LAST_SHARE of what is left of the budget
 BATCH_PARTS = 440            # parts in one batch of a large run (about 20 demo kits)
 COMPACT_UNITS = 600_000      # work of the last sheet's compaction per batch (about 0.3 s)
+POOL_FILL = 0.75             # a batch's last sheet filled less than this share of the others' mean is not repeated
 ASSIGN_SHARE = 0.5           # of a stage's budget for the assignment search (assign.py)
 
 
@@ -89,7 +90,7 @@ def sheet_run(lib, counts, usable, lower, work, budget, rng, clock, jobs):
             break
         # the well-filled sheets; or, when the batch is whole units (kits), all of them: whole kits
         # per block leave no odd mix of parts for the end
-        whole = not unplaced_items and _units(remaining) > 1
+        whole = not unplaced_items and _units(remaining) > 1 and not _poor_last(lib, got, usable)
         block = got if whole or len(got) == 1 else got[:-1]
         used = [0] * len(counts)
         for sheet in block:
@@ -100,6 +101,21 @@ def sheet_run(lib, counts, usable, lower, work, budget, rng, clock, jobs):
             sheets.extend(block)
         remaining = [r - times * u for r, u in zip(remaining, used)]
     return sheets, unplaced, stages, clocks
+
+
+def _fill(lib, sheet, usable) -> float:
+    """Share of the usable area that the parts of ``sheet`` cover."""
+    return sum(lib.shapes[sid].area for _i, sid, _x, _y in sheet) / ((usable[2] - usable[0]) * (usable[3] - usable[1]))
+
+
+def _poor_last(lib, sheets, usable) -> bool:
+    """Whether the last sheet of a batch is filled less than POOL_FILL times
+    the mean of the others: then it is not repeated with the batch; its parts
+    go back to the run, to be nested with the rest."""
+    if len(sheets) < 2:
+        return False
+    body = [_fill(lib, s, usable) for s in sheets[:-1]]
+    return _fill(lib, sheets[-1], usable) < POOL_FILL * sum(body) / len(body)
 
 
 def _units(remaining: list[int]) -> int:
