@@ -5,7 +5,11 @@ batches of whole units of at most :data:`BATCH_PARTS` parts; a batch is nested
 with the full search, its sheets (all of them for whole units; otherwise all
 but the last, the well-filled ones) are kept as *patterns* and repeated as
 often as the remaining parts allow, and what is left is nested again the same
-way. Each batch starts with the column layouts of
+way. A batch of whole units whose last sheet is filled less than
+:data:`POOL_FILL` times the mean of its other sheets is treated like the rest:
+that sheet is not repeated, and its parts go back to the run, where they are
+nested together with what is left (one sheet of leftovers from many repeats
+instead of a poorly filled sheet in every repeat). Each batch starts with the column layouts of
 :mod:`~sheetgen.production.nesting.columns`; the order search runs when they miss
 the bound, and the assignment search of :mod:`~sheetgen.production.nesting.assign`
 with what is left of the batch's budget. Repeated patterns cost one search, the
