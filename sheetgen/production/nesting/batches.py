@@ -5,7 +5,11 @@ batches of whole units of at most :data:`BATCH_PARTS` parts; a batch is nested
 with the full search, its sheets (all of them for whole units; otherwise all
 but the last, the well-filled ones) are kept as *patterns* and repeated as
 often as the remaining parts allow, and what is left is nested again the same
-way. Each batch starts with the column layouts of
+way. A batch of whole units whose last sheet is filled less than
+:data:`POOL_FILL` times the mean of its other sheets is treated like the rest:
+that sheet is not repeated, and its parts go back to the run, where they are
+nested together with what is left (one sheet of leftovers from many repeats
+instead of a poorly filled sheet in every repeat). Each batch starts with the column layouts of
 :mod:`~sheetgen.production.nesting.columns`; the order search runs when they miss
 the bound, and the assignment search of :mod:`~sheetgen.production.nesting.assign`
 with what is left of the batch's budget. Repeated patterns cost one search, the
@@ -26,6 +30,7 @@ from sheetgen.production.nesting.improve import sheet_search
 NON_LAST_SHARE = 4           # a batch that is repeated gets 1/NON_LAST_SHARE of what is left of the budget
 BATCH_PARTS = 440            # parts in one batch of a large run (about 20 demo kits)
 COMPACT_UNITS = 600_000      # work of the last sheet's compaction per batch (about 0.3 s)
+POOL_FILL = 0.75             # a batch's last sheet filled less than this share of the others' mean is not repeated
 ASSIGN_SHARE = 0.5           # of a stage's budget for the assignment search (assign.py)
 
 
@@ -89,7 +94,7 @@ def sheet_run(lib, counts, usable, lower, work, budget, rng, clock, jobs):
             break
         # the well-filled sheets; or, when the batch is whole units (kits), all of them: whole kits
         # per block leave no odd mix of parts for the end
-        whole = not unplaced_items and _units(remaining) > 1
+        whole = not unplaced_items and _units(remaining) > 1 and not _poor_last(lib, got, usable)
         block = got if whole or len(got) == 1 else got[:-1]
         used = [0] * len(counts)
         for sheet in block:
@@ -100,6 +105,21 @@ def sheet_run(lib, counts, usable, lower, work, budget, rng, clock, jobs):
             sheets.extend(block)
         remaining = [r - times * u for r, u in zip(remaining, used)]
     return sheets, unplaced, stages, clocks
+
+
+def _fill(lib, sheet, usable) -> float:
+    """Share of the usable area that the parts of ``sheet`` cover."""
+    return sum(lib.shapes[sid].area for _i, sid, _x, _y in sheet) / ((usable[2] - usable[0]) * (usable[3] - usable[1]))
+
+
+def _poor_last(lib, sheets, usable) -> bool:
+    """Whether the last sheet of a batch is filled less than POOL_FILL times
+    the mean of the others: then it is not repeated with the batch; its parts
+    go back to the run, to be nested with the rest."""
+    if len(sheets) < 2:
+        return False
+    body = [_fill(lib, s, usable) for s in sheets[:-1]]
+    return _fill(lib, sheets[-1], usable) < POOL_FILL * sum(body) / len(body)
 
 
 def _units(remaining: list[int]) -> int:
