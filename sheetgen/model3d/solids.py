@@ -3,7 +3,6 @@
 cadquery is imported inside the functions, so importing this module costs nothing."""
 
 from __future__ import annotations
-from __future__ import annotations
 
 import math
 import time
@@ -11,6 +10,7 @@ from dataclasses import dataclass
 from typing import Any
 
 import numpy as np
+from shapely.geometry import Polygon
 
 from sheetgen.errors import GeometryBug
 from sheetgen.design.part import Kit
@@ -95,6 +95,48 @@ def build_model(kit: Kit, spec) -> Model:
     return Model(bodies, solids, pieces, time.perf_counter() - start)
 
 
+CAP_EDGES = 300  # a face bounded by more edges than this is written in sectors (see step_solid)
+
+
+def _sectors(outline: Polygon, count: int) -> list[Polygon]:
+    """The outline cut into ``count`` sectors about the centre of its bounds
+    (the axis of a gear): the areal parts, in sector order."""
+    x0, y0, x1, y1 = outline.bounds
+    cx, cy, r = (x0 + x1) / 2, (y0 + y1) / 2, 2.0 * math.hypot(x1 - x0, y1 - y0) + 1.0
+    out = []
+    for k in range(count):
+        a = [2 * math.pi * (k + f / 4) / count for f in range(5)]
+        wedge = Polygon([(cx, cy)] + [(cx + r * math.cos(t), cy + r * math.sin(t)) for t in a])
+        cut = outline.intersection(wedge)
+        out += [g for g in getattr(cut, "geoms", [cut]) if isinstance(g, Polygon) and g.area > 0.0]
+    return out
+
+
+def step_solid(body: Body, solid):
+    """The solid as the STEP file carries it: a plate whose outline has more
+    than :data:`CAP_EDGES` vertices on a ring (a gear) gets its two flat faces
+    cut into sectors, the same solid in shape and volume.
+
+    A STEP reader joins the edges of each face one against another, so a gear
+    face of 2,400 edges takes it about half a minute and one of 120 a
+    fraction of a second; CAD programs open the file that much faster. The
+    model's own solids (the checks) stay whole."""
+    if len(body.pieces) != 1:
+        return solid
+    piece = body.pieces[0]
+    rings = [piece.outline.exterior, *piece.outline.interiors]
+    most = max(len(r.coords) - 1 for r in rings)
+    if most <= CAP_EDGES:
+        return solid
+    parts = [prism_solid(Prism(g, piece.depth_mm, piece.placement)) for g in _sectors(piece.outline,
+                                                                                        -(-most // 120))]
+    fused = parts[0].fuse(*parts[1:], glue=True)
+    pieces = fused.Solids()
+    if len(pieces) != 1 or abs(pieces[0].Volume() - solid.Volume()) > 1e-6 * solid.Volume():
+        raise GeometryBug(f"{body.name}: its sectors do not join into the one solid")
+    return pieces[0]
+
+
 GROUND_PLATE = "ground-plate"  # the part a polar kit's wedge stands on (sheetgen/design/parts/wedge.py)
 
 
@@ -127,7 +169,7 @@ def build_assembly(model: Model, name: str = "kit"):
     top = cq.Assembly(name=name) if tilt == 0 else cq.Assembly(name=name, loc=_ground_location(tilt))
     groups = {g: cq.Assembly(name=g) for g in ("fixed", "rotating")}
     for b in model.bodies:
-        groups["rotating" if b.rotating else "fixed"].add(model.solids[b.name], name=b.name)
+        groups["rotating" if b.rotating else "fixed"].add(step_solid(b, model.solids[b.name]), name=b.name)
     top.add(groups["fixed"])
     top.add(groups["rotating"])
     return top
