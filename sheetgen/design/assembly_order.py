@@ -39,6 +39,8 @@ SLIVER_MM = 0.02  # overlaps of shadows thinner than twice this are a bore on it
 EPS_MM = 1e-4  # overlaps along a line shorter than this are contact, not collision
 AREA_EPS_MM2 = 1e-3  # shadows sharing less area than this only touch
 FAR_MM = 1e5
+DENSE_STEP_MM = 0.5  # the finest spacing of the lines tried through a shadow overlap
+DENSE_POINTS = 400  # lines tried per piece of a shadow overlap, at most about
 NO_STRAIGHT_PATH = "?"  # a Move's approach when no straight line brings the item past what is there
 
 # the six directions an item may come from, named for the reader (kit frame: x along the axle, z up)
@@ -71,12 +73,14 @@ class Item:
 
 @dataclass(frozen=True)
 class Move:
-    """Items put in place together, coming from ``approach`` (a name of AXES: the side
-    they come from); ``bench`` names the group being built apart from the kit ('' for the kit)."""
+    """Items put in place together, coming from ``approach`` (the name of a side, one of
+    :func:`kit_directions`); ``bench`` names the group being built apart from the kit ('' for
+    the kit); ``direction``: the side as a unit vector (the items are slid in against it)."""
 
     items: tuple[str, ...]
     approach: str
     bench: str = ""
+    direction: tuple[float, float, float] = (0.0, 0.0, 0.0)  # the side as a unit vector, kit frame
 
 
 # ---------------------------------------------------------------------------
@@ -136,6 +140,44 @@ def _shafts(comp: Component, kit: Kit) -> tuple[Prism, ...]:
             if bore is not None:
                 out.append(Prism(bore, face_x - x, Placement(pl.rotation, (x, y, z))))
     return tuple(out)
+
+
+# ---------------------------------------------------------------------------
+# directions: the kit's axes, then each plate's own normal and in-plane directions
+
+
+def kit_directions(items: tuple[Item, ...]) -> tuple[tuple[str, tuple[float, float, float]], ...]:
+    """The sides an item may come from: the kit's six axes, then, for every part plate that
+    lies askew to them (a wedge's tilted ground plate), its normal and the two directions
+    in its plane, each both ways. Opposite sides sit side by side (index k ^ 1)."""
+    out = list(AXES)
+    for it in items:
+        if it.kind != "part":
+            continue
+        m = it.pieces[0].placement.matrix
+        for col, tag in ((2, "n"), (0, "u"), (1, "v")):
+            v = np.where(np.abs(m[:, col]) < 1e-12, 0.0, m[:, col])
+            if any(np.allclose(v, d, atol=1e-9) or np.allclose(-v, d, atol=1e-9) for _, d in out):
+                continue
+            out.append((f"{it.part} +{tag}", (float(v[0]), float(v[1]), float(v[2]))))
+            out.append((f"{it.part} -{tag}", (float(-v[0]) + 0.0, float(-v[1]) + 0.0, float(-v[2]) + 0.0)))
+    return tuple(out)
+
+
+def side_words(name: str, d: tuple[float, float, float]) -> str:
+    """How a reader is told the side an item comes from."""
+    if name in SIDE:
+        return SIDE[name]
+    part, _, tag = name.rpartition(" ")
+    x, y, z = d
+    if abs(z) >= max(abs(x), abs(y)):
+        where = "from above" if z > 0 else "from below"
+    elif abs(x) >= abs(y):
+        where = "from the drive end (+x)" if x > 0 else "from the plain end (-x)"
+    else:
+        where = "from the +y side" if y > 0 else "from the -y side"
+    how = f"square to the {part}'s face" if tag[1:] == "n" else f"along the {part}'s face"
+    return f"{where}, {how}"
 
 
 # ---------------------------------------------------------------------------
@@ -205,30 +247,95 @@ def _samples(region) -> list[tuple[float, float]]:
     return pts
 
 
-class _Blocking:
-    """blocks(a, b, k): item a moved along AXES[k] from its place runs into item b."""
+def _grid(region, max_points: int = DENSE_POINTS) -> np.ndarray:
+    """Points on a square grid inside each piece of a shadow overlap, at most about
+    ``max_points`` per piece and never closer than DENSE_STEP_MM: where a tab sits in a
+    slot of a plate seen askew, the lines that pass through both are a few mm wide."""
+    out = []
+    for g in getattr(region, "geoms", [region]):
+        if not isinstance(g, Polygon) or g.area < AREA_EPS_MM2:
+            continue
+        x0, y0, x1, y1 = g.bounds
+        h = max(DENSE_STEP_MM, float(np.sqrt((x1 - x0) * (y1 - y0) / max_points)))
+        gx, gy = np.meshgrid(np.arange(x0 + h / 2, x1, h), np.arange(y0 + h / 2, y1, h))
+        gx, gy = gx.ravel(), gy.ravel()
+        inside = shapely.contains_xy(g, gx, gy)
+        out.append(np.column_stack([gx[inside], gy[inside]]))
+    return np.vstack(out) if out else np.zeros((0, 2))
 
-    def __init__(self, items: tuple[Item, ...]):
+
+def _extents(p: Prism, qs: np.ndarray, d: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """For many lines q + s d (q: rows of ``qs``), the least and the greatest s inside the
+    prism (NaN where a line misses it): :func:`_extent` for arrays of lines."""
+    m, t = p.placement.matrix, np.asarray(p.placement.translation_mm)
+    l0 = (qs - t) @ m
+    dl = m.T @ d
+    n = len(qs)
+    lo, hi = np.full(n, np.nan), np.full(n, np.nan)
+    if abs(dl[2]) < 1e-12:
+        ok = (l0[:, 2] > 0.0) & (l0[:, 2] < p.depth_mm)
+        s0, s1 = np.full(n, -FAR_MM), np.full(n, FAR_MM)
+    else:
+        za, zb = (0.0 - l0[:, 2]) / dl[2], (p.depth_mm - l0[:, 2]) / dl[2]
+        s0, s1 = np.minimum(za, zb), np.maximum(za, zb)
+        ok = np.ones(n, dtype=bool)
+    a = l0[:, :2] + s0[:, None] * dl[:2]
+    b = l0[:, :2] + s1[:, None] * dl[:2]
+    length = np.linalg.norm(b - a, axis=1)
+    if float(np.linalg.norm(dl[:2])) < 1e-12:  # along the prism's own axis: the lines are points of its outline
+        hit = ok & shapely.contains_xy(p.outline, a[:, 0], a[:, 1])
+        lo[hit], hi[hit] = s0[hit], s1[hit]
+        return lo, hi
+    idx = np.nonzero(ok & (length > 1e-9))[0]
+    if not len(idx):
+        return lo, hi
+    lines = shapely.linestrings(np.stack([a[idx], b[idx]], axis=1))
+    parts, which = shapely.get_parts(shapely.intersection(lines, p.outline), return_index=True)
+    keep = (shapely.get_type_id(parts) == 1) & (shapely.length(parts) > 0.0)  # pieces of line, not touches
+    coords, ci = shapely.get_coordinates(parts[keep], return_index=True)
+    line = idx[which[keep][ci]]
+    s = s0[line] + (s1 - s0)[line] * np.linalg.norm(coords - a[line], axis=1) / length[line]
+    np.fmin.at(lo, line, s)
+    np.fmax.at(hi, line, s)
+    return lo, hi
+
+
+class _Blocking:
+    """blocks(a, b, k): item a moved along directions[k] from its place runs into item b."""
+
+    def __init__(self, items: tuple[Item, ...], directions=AXES):
         self.items = items
+        self.directions = tuple(directions)
         self.index = {it.name: i for i, it in enumerate(items)}
-        self.boxes = [self._box(it) for it in items]
+        self.points = [self._points(it) for it in items]
+        self.boxes = [np.vstack([p.min(axis=0), p.max(axis=0)]) for p in self.points]
         self._cache: dict[tuple[int, int, int], bool] = {}
         self._shadows: dict[tuple[int, int], list[Polygon]] = {}
+        self._spans: dict[tuple[int, int], np.ndarray] = {}
 
     @staticmethod
-    def _box(it: Item) -> np.ndarray:
+    def _points(it: Item) -> np.ndarray:
         pts = []
         for p in it.pieces:
             xy = np.asarray(p.outline.exterior.coords, dtype=float)
             for z in (0.0, p.depth_mm):
                 pts.append(p.placement.apply(np.column_stack([xy, np.full(len(xy), z)])))
-        allp = np.vstack(pts)
-        return np.vstack([allp.min(axis=0), allp.max(axis=0)])
+        return np.vstack(pts)
+
+    def spans(self, i: int, k: int) -> np.ndarray:
+        """Item i's extent along directions[k] and the two directions across it: 3 x (min, max)."""
+        key = (i, k)
+        if key not in self._spans:
+            d = np.asarray(self.directions[k][1])
+            e1, e2 = _basis(d)
+            proj = self.points[i] @ np.column_stack([d, e1, e2])
+            self._spans[key] = np.column_stack([proj.min(axis=0), proj.max(axis=0)])
+        return self._spans[key]
 
     def shadows(self, i: int, k: int) -> list[Polygon]:
         key = (i, k)
         if key not in self._shadows:
-            d = np.asarray(AXES[k][1])
+            d = np.asarray(self.directions[k][1])
             self._shadows[key] = [_shadow(p, d) for p in self.items[i].pieces]
         return self._shadows[key]
 
@@ -240,18 +347,17 @@ class _Blocking:
         return self._cache[key]
 
     def _blocks(self, a: int, b: int, k: int) -> bool:
-        d = np.asarray(AXES[k][1])
-        ax = int(np.argmax(np.abs(d)))
-        sign = float(d[ax])
-        ba, bb = self.boxes[a], self.boxes[b]
-        # b wholly behind a along d, or the boxes' shadows apart: no collision
-        if sign > 0 and bb[1, ax] <= ba[0, ax] + EPS_MM or sign < 0 and bb[0, ax] >= ba[1, ax] - EPS_MM:
+        d = np.asarray(self.directions[k][1])
+        sa_, sb_ = self.spans(a, k), self.spans(b, k)
+        # b wholly behind a along d, or their shadows' boxes apart: no collision
+        if sb_[0, 1] <= sa_[0, 0] + EPS_MM:
             return False
-        for o in range(3):
-            if o != ax and (bb[1, o] <= ba[0, o] + EPS_MM or bb[0, o] >= ba[1, o] - EPS_MM):
+        for o in (1, 2):
+            if sb_[o, 1] <= sa_[o, 0] + EPS_MM or sb_[o, 0] >= sa_[o, 1] - EPS_MM:
                 return False
         e1, e2 = _basis(d)
         ia, ib = self.items[a], self.items[b]
+        overlaps = []
         for pa, sa in zip(ia.pieces, self.shadows(a, k)):
             for pb, sb in zip(ib.pieces, self.shadows(b, k)):
                 common = sa.intersection(sb).buffer(-SLIVER_MM)
@@ -262,6 +368,18 @@ class _Blocking:
                     ea, eb = _extent(pa, q, d), _extent(pb, q, d)
                     if ea and eb and max(h for _, h in eb) > min(lo for lo, _ in ea) + EPS_MM:
                         return True
+                overlaps.append((pa, pb, common))
+        # the few sample lines missed: lines on a grid through the overlap (a tab in the slot
+        # of a plate seen askew blocks only along lines a few mm wide)
+        for pa, pb, common in overlaps:
+            uv = _grid(common)
+            if not len(uv):
+                continue
+            qs = uv[:, :1] * e1 + uv[:, 1:] * e2
+            lo_a, _ = _extents(pa, qs, d)
+            _, hi_b = _extents(pb, qs, d)
+            if bool(np.any(hi_b > lo_a + EPS_MM)):  # NaN (a line missing either) compares False
+                return True
         return False
 
     def share_volume(self, a: int, b: int) -> bool:
@@ -284,13 +402,13 @@ class _Blocking:
         return False
 
     def masks(self, meshing: frozenset = frozenset()) -> list[list[int]]:
-        """hits[k][a]: the items a runs into along AXES[k], as a bit mask over item indices.
+        """hits[k][a]: the items a runs into along directions[k], as a bit mask over item indices.
         Parts of a ``meshing`` pair (gears) never stop each other: their teeth are turned
         into mesh by hand as the second goes in."""
         n = len(self.items)
-        hits = [[0] * n for _ in AXES]
+        hits = [[0] * n for _ in self.directions]
         pairs = {frozenset(p) for p in meshing}
-        for k in range(len(AXES)):
+        for k in range(len(self.directions)):
             for a in range(n):
                 for b in range(n):
                     if frozenset((self.items[a].part, self.items[b].part)) in pairs:
@@ -301,8 +419,8 @@ class _Blocking:
         # 3D check reports; it says nothing about the order, so the pair is left out
         for a in range(n):
             for b in range(n):
-                if all(hits[k][a] >> b & 1 for k in range(len(AXES))) and self.share_volume(a, b):
-                    for k in range(len(AXES)):
+                if all(hits[k][a] >> b & 1 for k in range(len(self.directions))) and self.share_volume(a, b):
+                    for k in range(len(self.directions)):
                         hits[k][a] &= ~(1 << b)
                         hits[k][b] &= ~(1 << a)
         return hits
@@ -324,7 +442,8 @@ def _natural_key(it: Item, box: np.ndarray) -> tuple:
 class _Planner:
     def __init__(self, kit: Kit):
         self.items = solid_items(kit)
-        self.blk = _Blocking(self.items)
+        self.directions = kit_directions(self.items)
+        self.blk = _Blocking(self.items, self.directions)
         self.keys = [_natural_key(it, self.blk.boxes[i]) for i, it in enumerate(self.items)]
         from sheetgen.design.kit import MESHING
 
@@ -366,9 +485,9 @@ class _Planner:
         return out
 
     def _way_out(self, group: frozenset[int], among: frozenset[int]) -> int | None:
-        """The first side (index into AXES) the group can leave ``among`` by, or None."""
+        """The first side (index into the directions) the group can leave ``among`` by, or None."""
         others = sum(1 << i for i in among - group)
-        for k in range(len(AXES)):
+        for k in range(len(self.directions)):
             if not any(self.hits[k][a] & others for a in group):
                 return k
         return None
@@ -395,7 +514,7 @@ class _Planner:
 
     def _touches(self, i: int, placed: frozenset[int]) -> bool:
         """Item i rests against something placed (boxes touch and one stops the other)."""
-        return any(self._touch(i, j) and any(self.hits[k][i] >> j & 1 for k in range(len(AXES)))
+        return any(self._touch(i, j) and any(self.hits[k][i] >> j & 1 for k in range(len(self.directions)))
                    for j in sorted(placed))
 
     def _pick(self, rest: frozenset[int], placed: frozenset[int], whole: frozenset[int]):
@@ -455,7 +574,10 @@ class _Planner:
             names = tuple(self.items[i].name for i in sorted(g, key=lambda x: self.keys[x]))
             if len(g) > 1:
                 moves += self.order(g, bench="+".join(sorted({self.items[i].part for i in g})))
-            moves.append(Move(names, NO_STRAIGHT_PATH if k is None else AXES[k][0], bench))
+            if k is None:
+                moves.append(Move(names, NO_STRAIGHT_PATH, bench))
+            else:
+                moves.append(Move(names, self.directions[k][0], bench, self.directions[k][1]))
             placed = placed | g
         return moves
 
@@ -539,8 +661,8 @@ class Step:
     ``parts``: (part, qty) of the cut parts put in; ``components``: solid components put
     in; ``hardware``: (item, qty) fitted here; ``new``: the instances put in (highlighted
     in the picture); ``shown``: every instance in the picture (the kit so far, or the
-    group on the bench); ``approach``: the side the new items come from (AXES name, ''
-    for the first); ``bench``: true when the step builds a group apart from the kit."""
+    group on the bench); ``approach``: the side the new items come from (a name of
+    :func:`kit_directions`, '' for the first); ``bench``: true when the step builds a group apart from the kit."""
 
     number: int
     title: str
@@ -757,7 +879,7 @@ def _words(planner: _Planner, mvs, names, placed, bench, group, first) -> tuple[
     """A step's title and how-to sentence, from what moves, from where, into what."""
     kit_joints = planner.joints
     side = mvs[-1].approach
-    approach = SIDE.get(side, "")
+    approach = side_words(side, mvs[-1].direction)
     what = " and ".join(names)
     before = {planner.items[planner.blk.index[n]].part for n in placed}
     if bench:
