@@ -165,19 +165,16 @@ def kit_directions(items: tuple[Item, ...]) -> tuple[tuple[str, tuple[float, flo
 
 
 def side_words(name: str, d: tuple[float, float, float]) -> str:
-    """How a reader is told the side an item comes from."""
+    """How a reader is told the side an item comes from: a kit axis by its name (SIDE), a
+    plate's own direction by that plate's faces."""
     if name in SIDE:
         return SIDE[name]
     part, _, tag = name.rpartition(" ")
-    x, y, z = d
-    if abs(z) >= max(abs(x), abs(y)):
-        where = "from above" if z > 0 else "from below"
-    elif abs(x) >= abs(y):
-        where = "from the drive end (+x)" if x > 0 else "from the plain end (-x)"
-    else:
-        where = "from the +y side" if y > 0 else "from the -y side"
-    how = f"square to the {part}'s face" if tag[1:] == "n" else f"along the {part}'s face"
-    return f"{where}, {how}"
+    if tag == "+n":
+        return f"square to the {part}'s face, from its top side"
+    if tag == "-n":
+        return f"square to the {part}'s face, from its underside"
+    return f"sliding along the {part}'s face"
 
 
 # ---------------------------------------------------------------------------
@@ -247,6 +244,12 @@ def _samples(region) -> list[tuple[float, float]]:
     return pts
 
 
+def _askew(p: Prism, d: np.ndarray) -> bool:
+    """The prism's plate is neither square to d nor seen edge-on along it."""
+    c = abs(float(p.placement.matrix[:, 2] @ d))
+    return 1e-9 < c < 1.0 - 1e-9
+
+
 def _grid(region, max_points: int = DENSE_POINTS) -> np.ndarray:
     """Points on a square grid inside each piece of a shadow overlap, at most about
     ``max_points`` per piece and never closer than DENSE_STEP_MM: where a tab sits in a
@@ -264,9 +267,11 @@ def _grid(region, max_points: int = DENSE_POINTS) -> np.ndarray:
     return np.vstack(out) if out else np.zeros((0, 2))
 
 
-def _extents(p: Prism, qs: np.ndarray, d: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+def _extents(p: Prism, qs: np.ndarray, d: np.ndarray,
+             only: np.ndarray | None = None) -> tuple[np.ndarray, np.ndarray]:
     """For many lines q + s d (q: rows of ``qs``), the least and the greatest s inside the
-    prism (NaN where a line misses it): :func:`_extent` for arrays of lines."""
+    prism (NaN where a line misses it, or is not among ``only``): :func:`_extent` for
+    arrays of lines."""
     m, t = p.placement.matrix, np.asarray(p.placement.translation_mm)
     l0 = (qs - t) @ m
     dl = m.T @ d
@@ -279,6 +284,8 @@ def _extents(p: Prism, qs: np.ndarray, d: np.ndarray) -> tuple[np.ndarray, np.nd
         za, zb = (0.0 - l0[:, 2]) / dl[2], (p.depth_mm - l0[:, 2]) / dl[2]
         s0, s1 = np.minimum(za, zb), np.maximum(za, zb)
         ok = np.ones(n, dtype=bool)
+    if only is not None:
+        ok &= only
     a = l0[:, :2] + s0[:, None] * dl[:2]
     b = l0[:, :2] + s1[:, None] * dl[:2]
     length = np.linalg.norm(b - a, axis=1)
@@ -290,6 +297,11 @@ def _extents(p: Prism, qs: np.ndarray, d: np.ndarray) -> tuple[np.ndarray, np.nd
     if not len(idx):
         return lo, hi
     lines = shapely.linestrings(np.stack([a[idx], b[idx]], axis=1))
+    shapely.prepare(p.outline)
+    meets = shapely.intersects(lines, p.outline)  # a prepared test first: cutting lines is the cost
+    idx, lines = idx[meets], lines[meets]
+    if not len(idx):
+        return lo, hi
     parts, which = shapely.get_parts(shapely.intersection(lines, p.outline), return_index=True)
     keep = (shapely.get_type_id(parts) == 1) & (shapely.length(parts) > 0.0)  # pieces of line, not touches
     coords, ci = shapely.get_coordinates(parts[keep], return_index=True)
@@ -368,16 +380,18 @@ class _Blocking:
                     ea, eb = _extent(pa, q, d), _extent(pb, q, d)
                     if ea and eb and max(h for _, h in eb) > min(lo for lo, _ in ea) + EPS_MM:
                         return True
-                overlaps.append((pa, pb, common))
-        # the few sample lines missed: lines on a grid through the overlap (a tab in the slot
-        # of a plate seen askew blocks only along lines a few mm wide)
+                if _askew(pa, d) or _askew(pb, d):
+                    overlaps.append((pa, pb, common))
+        # where a plate is seen askew (its shadow the hull of its corners, not its outline) the
+        # few sample lines can miss: lines on a grid through the overlap (a tab in the slot of
+        # a tilted plate blocks only along lines a few mm wide)
         for pa, pb, common in overlaps:
             uv = _grid(common)
             if not len(uv):
                 continue
             qs = uv[:, :1] * e1 + uv[:, 1:] * e2
             lo_a, _ = _extents(pa, qs, d)
-            _, hi_b = _extents(pb, qs, d)
+            _, hi_b = _extents(pb, qs, d, ~np.isnan(lo_a))
             if bool(np.any(hi_b > lo_a + EPS_MM)):  # NaN (a line missing either) compares False
                 return True
         return False
@@ -903,7 +917,10 @@ def _words(planner: _Planner, mvs, names, placed, bench, group, first) -> tuple[
     if into:
         return f"Fit the {what} into the {' and '.join(into)}", f"Bring it {approach} and push its tabs into the slots."
     if onto:
-        return f"Fit the {what} onto the {' and '.join(onto)}", f"Lower it {approach} over the {' and '.join(onto)} tabs."
+        tabs = " and ".join(onto)
+        if side not in SIDE:  # a plate's own side, askew to the kit's axes
+            return f"Fit the {what} onto the {tabs}", f"Press it onto the {tabs} tabs {approach}."
+        return f"Fit the {what} onto the {tabs}", f"Lower it {approach} over the {tabs} tabs."
     if item.name in _rods(planner):
         passed = list(dict.fromkeys(planner.items[planner.blk.index[n]].part for n in placed
                                     if _threaded(planner, planner.blk.index[n], item.name)))
