@@ -9,9 +9,15 @@ import shapely
 from shapely import affinity
 from shapely.geometry import LineString, Point, Polygon
 
-from sheetgen.design.assembly_order.items import (AREA_EPS_MM2, AXES, DENSE_POINTS, DENSE_STEP_MM, EPS_MM, FAR_MM,
-                                                  SLIVER_MM, Item)
+from sheetgen.design.assembly_order.items import AXES, Item
 from sheetgen.geometry.prism import Prism
+
+SLIVER_MM = 0.02  # overlaps of shadows thinner than twice this are a bore on its rod (outlines' chords within 0.01 mm)
+EPS_MM = 1e-4  # overlaps along a line shorter than this are contact, not collision
+AREA_EPS_MM2 = 1e-3  # shadows sharing less area than this only touch
+FAR_MM = 1e5
+DENSE_STEP_MM = 0.5  # the finest spacing of the lines tried through a shadow overlap
+DENSE_POINTS = 400  # lines tried per piece of a shadow overlap, at most about
 
 
 def _basis(d: np.ndarray) -> tuple[np.ndarray, np.ndarray]:

@@ -12,12 +12,6 @@ from sheetgen.design.part import Kit
 from sheetgen.design.prisms import component_prisms
 from sheetgen.geometry.prism import Prism
 
-SLIVER_MM = 0.02  # overlaps of shadows thinner than twice this are a bore on its rod (outlines' chords within 0.01 mm)
-EPS_MM = 1e-4  # overlaps along a line shorter than this are contact, not collision
-AREA_EPS_MM2 = 1e-3  # shadows sharing less area than this only touch
-FAR_MM = 1e5
-DENSE_STEP_MM = 0.5  # the finest spacing of the lines tried through a shadow overlap
-DENSE_POINTS = 400  # lines tried per piece of a shadow overlap, at most about
 NO_STRAIGHT_PATH = "?"  # a Move's approach when no straight line brings the item past what is there
 
 # the six directions an item may come from, named for the reader (kit frame: x along the axle, z up)
@@ -26,7 +20,6 @@ AXES: tuple[tuple[str, tuple[float, float, float]], ...] = (
     ("+x", (1.0, 0.0, 0.0)), ("-x", (-1.0, 0.0, 0.0)),
     ("+y", (0.0, 1.0, 0.0)), ("-y", (0.0, -1.0, 0.0)),
 )
-
 
 
 @dataclass(frozen=True)
