@@ -106,16 +106,14 @@ def _grid(region, max_points: int = DENSE_POINTS) -> np.ndarray:
     return np.vstack(out) if out else np.zeros((0, 2))
 
 
-def _extents(p: Prism, qs: np.ndarray, d: np.ndarray,
-             only: np.ndarray | None = None) -> tuple[np.ndarray, np.ndarray]:
-    """For many lines q + s d (q: rows of ``qs``), the least and the greatest s inside the
-    prism (NaN where a line misses it, or is not among ``only``): :func:`_extent` for
-    arrays of lines."""
+def _slab(p: Prism, qs: np.ndarray, d: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """Where many lines q + s d run between the two faces of the prism's plate: s from, s to
+    (+-FAR_MM for a line in the plate's plane), which lines do at all, and the lines' start
+    and direction in the prism's own frame."""
     m, t = p.placement.matrix, np.asarray(p.placement.translation_mm)
     l0 = (qs - t) @ m
     dl = m.T @ d
     n = len(qs)
-    lo, hi = np.full(n, np.nan), np.full(n, np.nan)
     if abs(dl[2]) < 1e-12:
         ok = (l0[:, 2] > 0.0) & (l0[:, 2] < p.depth_mm)
         s0, s1 = np.full(n, -FAR_MM), np.full(n, FAR_MM)
@@ -123,6 +121,17 @@ def _extents(p: Prism, qs: np.ndarray, d: np.ndarray,
         za, zb = (0.0 - l0[:, 2]) / dl[2], (p.depth_mm - l0[:, 2]) / dl[2]
         s0, s1 = np.minimum(za, zb), np.maximum(za, zb)
         ok = np.ones(n, dtype=bool)
+    return s0, s1, ok, l0, dl
+
+
+def _extents(p: Prism, qs: np.ndarray, d: np.ndarray,
+             only: np.ndarray | None = None) -> tuple[np.ndarray, np.ndarray]:
+    """For many lines q + s d (q: rows of ``qs``), the least and the greatest s inside the
+    prism (NaN where a line misses it, or is not among ``only``): :func:`_extent` for
+    arrays of lines."""
+    n = len(qs)
+    lo, hi = np.full(n, np.nan), np.full(n, np.nan)
+    s0, s1, ok, l0, dl = _slab(p, qs, d)
     if only is not None:
         ok &= only
     a = l0[:, :2] + s0[:, None] * dl[:2]
@@ -230,8 +239,13 @@ class Blocking:
             if not len(uv):
                 continue
             qs = uv[:, :1] * e1 + uv[:, 1:] * e2
-            lo_a, _ = _extents(pa, qs, d)
-            _, hi_b = _extents(pb, qs, d, ~np.isnan(lo_a))
+            s0_a, _, in_a, _, _ = _slab(pa, qs, d)
+            _, s1_b, in_b, _, _ = _slab(pb, qs, d)
+            maybe = in_a & in_b & (s1_b > s0_a + EPS_MM)  # b's slab ends past where a's begins
+            if not maybe.any():
+                continue
+            lo_a, _ = _extents(pa, qs, d, maybe)
+            _, hi_b = _extents(pb, qs, d, maybe & ~np.isnan(lo_a))
             if bool(np.any(hi_b > lo_a + EPS_MM)):  # NaN (a line missing either) compares False
                 return True
         return False
