@@ -13,6 +13,7 @@ from shapely.geometry import Point, Polygon
 from sheetgen.errors import GeometryBug, ParameterError
 from sheetgen.geometry.shapes import one_polygon
 from sheetgen.design.part import Kit
+# the component solids follow one rule with the assembly guide; MOTOR is read by pairs and checks from here
 from sheetgen.design.prisms import MOTOR, component_prisms, mesh_pairs as _mesh_pairs, snap as _snap
 from sheetgen.geometry.placement import Placement
 from sheetgen.geometry.prism import AXIS_TOL as _AXIS_TOL, Prism, spun

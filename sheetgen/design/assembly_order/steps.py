@@ -21,7 +21,9 @@ class Step:
     in; ``hardware``: (item, qty) fitted here; ``new``: the instances put in (highlighted
     in the picture); ``shown``: every instance in the picture (the kit so far, or the
     group on the bench); ``approach``: the side the new items come from (a name of
-    :func:`kit_directions`, '' for the first); ``bench``: true when the step builds a group apart from the kit."""
+    :func:`kit_directions`, '' for the first); ``bench``: true when the step builds a group
+    apart from the kit; ``hardware_specs``: what to buy for each entry of ``hardware`` (two
+    sizes of one item, an M3 and an M4 bolt, are two entries)."""
 
     number: int
     title: str
@@ -35,6 +37,7 @@ class Step:
     shown: tuple[str, ...]
     approach: str
     bench: bool = False
+    hardware_specs: tuple[str, ...] = ()
 
 
 PRESS_NOTE = ("Press fit: press it home square with a vice or a clamp between two flat blocks, slowly and "
@@ -71,10 +74,17 @@ def guide_items(kit: Kit, spec) -> tuple[GuideItem, ...]:
 
     solid_of = {"prices.axle_rod": "axle", "prices.motor": "motor", "prices.panel": "panel"}
     names = {c.name for c in kit.components}
+    items = hardware_items(kit, spec)
+    bolted: dict[float | None, tuple[str, ...]] = {}  # a nut goes on with the bolts of its size
+    for h in items:
+        if h.price_key == "prices.bolt":
+            bolted[h.diameter_mm] = tuple(dict.fromkeys(bolted.get(h.diameter_mm, ()) + tuple(h.parts)))
     out = []
-    for h in hardware_items(kit, spec):
+    for h in items:
         solid = solid_of.get(h.price_key)
         parts = (solid,) if solid in names else h.parts
+        if h.price_key == "prices.nut" and not parts:
+            parts = bolted.get(h.diameter_mm, ())
         final = h.price_key in ("prices.anchor_screw", "prices.counterweight", "prices.payload") or not parts
         out.append(GuideItem(h.item, h.spec, h.qty_per_kit, tuple(parts), final))
     return tuple(out)
@@ -178,30 +188,33 @@ def assembly_steps(kit: Kit, spec, hardware: tuple | None = None) -> tuple[Step,
                     where[part_of[n]] = number
     for name in [q.name for q in kit.parts] + [c.name for c in kit.components]:  # bench parts: their group
         where.setdefault(name, first_step.get(name, last))
-    hw_at: dict[int, list[tuple[str, int]]] = {}
+    hw_at: dict[int, list[tuple[str, int, str]]] = {}
     finals: list = []
     for h in hardware:
         hp = tuple(getattr(h, "parts", ()) or ())
         if getattr(h, "final", False) or not hp or any(n not in where for n in hp):
             finals.append(h)
             continue
-        hw_at.setdefault(max(where[n] for n in hp), []).append((h.item, h.qty_per_kit))
+        hw_at.setdefault(max(where[n] for n in hp), []).append((h.item, h.qty_per_kit, getattr(h, "spec", "")))
     steps = []
     for r in raw:
-        hw = tuple(hw_at.get(r.number, ()))
+        fitted = hw_at.get(r.number, [])
+        hw = tuple((item, qty) for item, qty, _ in fitted)
         step_notes = r.notes
         if any(item == "bolt" for item, _ in hw):
             step_notes += ("Bolt the stack: a bolt through each hole, washer under the nut; tighten evenly, "
                            "snug, without crushing the sheet.",)
-        steps.append(dataclasses.replace(r, hardware=hw, notes=step_notes))
+        steps.append(dataclasses.replace(r, hardware=hw, notes=step_notes,
+                                         hardware_specs=tuple(what for _, _, what in fitted)))
     if finals:
-        fin_parts = [h.item for h in finals]
+        fin_parts = list(dict.fromkeys(h.item for h in finals))
         steps.append(Step(last + 1, "Finish and set up", "Fit the " + ", ".join(fin_parts) + "; set the kit where "
                           "it will stand and turn the frame by hand through its travel before powering the motor.",
                           (), (), tuple((h.item, h.qty_per_kit) for h in finals),
                           ("Fix the loose items where the spec gives them: the counterweight's place is what "
                            "the balance check assumed.",) if any("counterweight" in h.item for h in finals) else (),
-                          (WIND_CAUTION, PINCH_CAUTION), (), tuple(placed), ""))
+                          (WIND_CAUTION, PINCH_CAUTION), (), tuple(placed), "",
+                          hardware_specs=tuple(getattr(h, "spec", "") for h in finals)))
     else:
         steps[-1] = dataclasses.replace(steps[-1], cautions=steps[-1].cautions + (WIND_CAUTION,))
     return tuple(steps)
