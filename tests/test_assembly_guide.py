@@ -231,6 +231,28 @@ def test_every_part_and_item_is_in_a_step(demo_kit, demo_spec):
     assert bolts.qty_per_kit == len(next(p for p in demo_kit.parts if p.name == "tray").circles)
 
 
+def test_each_bought_item_shows_its_own_size(demo_kit, demo_spec):
+    # the demo has two bolt sizes (the frame stack and the counterweight bracket): each step
+    # lists each item with the spec of its own size, and a nut goes on with the bolts of its
+    # size (a nut is useless in a later step than its bolt)
+    from sheetgen.design.assembly_order import assembly_steps
+    from sheetgen.design.hardware import hardware_items
+
+    listed = {(h.item, h.spec) for h in hardware_items(demo_kit, demo_spec)}
+    assert len({spec for item, spec in listed if item == "bolt"}) >= 2, "the demo has two bolt sizes"
+    nuts = 0
+    for s in assembly_steps(demo_kit, demo_spec):
+        assert len(s.hardware_specs) == len(s.hardware)
+        fitted = [(item, spec) for (item, _), spec in zip(s.hardware, s.hardware_specs)]
+        assert set(fitted) <= listed, s.number
+        for item, spec in fitted:
+            if item == "nut":
+                nuts += 1
+                size = spec.split()[-1]  # "hexagon nut ISO 4032 M3"
+                assert any(i == "bolt" and f" {size} " in sp for i, sp in fitted), (s.number, spec)
+    assert nuts >= 2
+
+
 # ---------------------------------------------------------------------------
 # the page
 
