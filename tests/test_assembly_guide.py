@@ -5,7 +5,8 @@ real browser, and the engraved labels carry the step numbers.
 The reach check is independent of the ordering code: it takes the solids of the 3D model
 (sheetgen.model3d.bodies, the pinion turned into mesh as the model has it), fills each
 solid with points a little inside its faces, slides those points from the item's place out
-along the side it comes from, and asks shapely whether any point enters a solid already
+along the side it comes from (a kit axis, or the unit vector of a tilted plate's own side,
+as the polar kit's ground plate has), and asks shapely whether any point enters a solid already
 in place. "Reaches its place" is a fact of the machine (the kit goes together in that
 order), not of the drawing. Tolerances: points 0.05 mm inside the faces, slid in steps of
 0.5 mm; every solid of the kit is at least 2 mm thick, so no collision hides between
