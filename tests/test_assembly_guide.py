@@ -5,7 +5,8 @@ real browser, and the engraved labels carry the step numbers.
 The reach check is independent of the ordering code: it takes the solids of the 3D model
 (sheetgen.model3d.bodies, the pinion turned into mesh as the model has it), fills each
 solid with points a little inside its faces, slides those points from the item's place out
-along the side it comes from, and asks shapely whether any point enters a solid already
+along the side it comes from (a kit axis, or the unit vector of a tilted plate's own side,
+as the polar kit's ground plate has), and asks shapely whether any point enters a solid already
 in place. "Reaches its place" is a fact of the machine (the kit goes together in that
 order), not of the drawing. Tolerances: points 0.05 mm inside the faces, slid in steps of
 0.5 mm; every solid of the kit is at least 2 mm thick, so no collision hides between
@@ -76,29 +77,32 @@ def _aabb(prism) -> tuple[np.ndarray, np.ndarray]:
     return c.min(axis=0), c.max(axis=0)
 
 
-def first_collision(moving, placed, side: str) -> str | None:
+def first_collision(moving, placed, side) -> str | None:
     """The name of the first solid of ``placed`` that the ``moving`` solids run into when
-    slid from their places out along ``side``; None when the way is free."""
-    d = np.asarray(SIDES[side], dtype=float)
-    ax = int(np.argmax(np.abs(d)))
+    slid from their places out along ``side`` (a name of SIDES, or a unit vector for a side
+    askew to the kit's axes: a tilted plate's normal); None when the way is free."""
+    d = np.asarray(SIDES[side] if isinstance(side, str) else side, dtype=float)
+    assert abs(np.linalg.norm(d) - 1.0) < 1e-9, f"side {side}: not a unit vector"
+    with np.errstate(divide="ignore", invalid="ignore"):
+        inv = np.where(d != 0.0, 1.0 / np.where(d != 0.0, d, 1.0), 0.0)
     for body in moving:
         for piece in body.pieces:
             pts = _fill(piece)
             for other in placed:
                 for q in other.pieces:
                     lo, hi = _aabb(q)
-                    across = [i for i in range(3) if i != ax]
-                    near = np.all((pts[:, across] > lo[across] - 1e-9) & (pts[:, across] < hi[across] + 1e-9), axis=1)
+                    # where along the slide each point is within the placed piece's box (slab test)
+                    t1, t2 = (lo - pts) * inv, (hi - pts) * inv
+                    still = d == 0.0
+                    inside_across = np.all(~still | ((pts > lo - 1e-9) & (pts < hi + 1e-9)), axis=1)
+                    enter = np.max(np.where(still, -np.inf, np.minimum(t1, t2)), axis=1)
+                    leave = np.min(np.where(still, np.inf, np.maximum(t1, t2)), axis=1)
+                    near = inside_across & (leave > 0.0) & (enter < leave)
                     if not near.any():
                         continue
                     p = pts[near]
-                    along = p[:, ax] * d[ax]
-                    q_lo = min(lo[ax] * d[ax], hi[ax] * d[ax])
-                    q_hi = max(lo[ax] * d[ax], hi[ax] * d[ax])
-                    s_max = q_hi - along.min()
-                    if s_max <= 0:
-                        continue
-                    s_min = max(0.0, q_lo - along.max())
+                    s_min = max(0.0, float(enter[near].min()))
+                    s_max = float(leave[near].max())
                     for s in np.arange(s_min, s_max + SLIDE_MM, SLIDE_MM):
                         if _inside(q, p + s * d).any():
                             return other.name
@@ -119,7 +123,8 @@ def _check_order(kit, spec):
         here = bench.setdefault(mv.bench, []) if mv.bench else kit_placed
         assert mv.approach != "?", f"{', '.join(mv.items)}: the guide found no straight path"
         if mv.approach:
-            hit = first_collision([bodies[n] for n in mv.items], [bodies[n] for n in here], mv.approach)
+            side = mv.approach if mv.approach in SIDES else mv.direction  # a tilted plate's own side
+            hit = first_collision([bodies[n] for n in mv.items], [bodies[n] for n in here], side)
             assert hit is None, f"{', '.join(mv.items)} coming {mv.approach} runs into {hit}"
         here.extend(n for n in mv.items if n not in here)
     assert sorted(kit_placed) == sorted(bodies), "every solid of the model is put in once"
@@ -143,15 +148,25 @@ def test_the_checker_sees_a_blocked_path(demo_kit, demo_spec):
     assert first_collision([bodies["pinion#1"]], [bodies["motor-mount#1"]], "+x") == "motor-mount#1"
 
 
-@pytest.mark.parametrize("params", [
-    "demo.toml",
-    # known gap: the order planner slides parts along the kit's axes only, and samples the
-    # overlap of shadows coarsely; the polar wedge's plates join the ground plate along its
-    # tilted normal, and the planner misses that the ground plate cannot come off along -z
-    pytest.param("acrylic-polar.toml", marks=pytest.mark.xfail(
-        strict=True, reason="tilted wedge joints: the planner tries the kit's axes only")),
-    "large-6mm.toml",
-])
+def test_the_checker_sees_a_tilted_plate_blocked():
+    # the polar kit's ground plate lies askew to the kit's axes: the wedges' tabs sit in its
+    # slots along its own normal, so it cannot come off straight down (-z) past them, and can
+    # along its normal, away from the wedges
+    from sheetgen.design.kit import build_kit
+    from sheetgen.design.spec import load_spec
+    from sheetgen.model3d.bodies import model_bodies
+
+    spec = load_spec(PARAMS / "acrylic-polar.toml")
+    bodies = {b.name: b for b in model_bodies(build_kit(spec), spec)}
+    plate, wedges = bodies["ground-plate#1"], [bodies["wedge#1"], bodies["wedge#2"]]
+    normal = plate.pieces[0].placement.matrix[:, 2]
+    assert abs(normal[2]) < 0.99, "the ground plate is askew to the kit's axes"
+    assert first_collision([plate], wedges, "-z") in ("wedge#1", "wedge#2")
+    assert first_collision([plate], wedges, tuple(normal)) in ("wedge#1", "wedge#2")
+    assert first_collision([plate], wedges, tuple(-normal)) is None
+
+
+@pytest.mark.parametrize("params", sorted(p.name for p in PARAMS.glob("*.toml")))
 def test_every_item_reaches_its_place_in_the_guides_order(params):
     from sheetgen.design.kit import build_kit
     from sheetgen.design.spec import load_spec
@@ -215,6 +230,28 @@ def test_every_part_and_item_is_in_a_step(demo_kit, demo_spec):
     # the frame bolts follow from the holes through the frame stack
     bolts = next(h for h in hardware_items(demo_kit, demo_spec) if h.price_key == "prices.bolt")
     assert bolts.qty_per_kit == len(next(p for p in demo_kit.parts if p.name == "tray").circles)
+
+
+def test_each_bought_item_shows_its_own_size(demo_kit, demo_spec):
+    # the demo has two bolt sizes (the frame stack and the counterweight bracket): each step
+    # lists each item with the spec of its own size, and a nut goes on with the bolts of its
+    # size (a nut is useless in a later step than its bolt)
+    from sheetgen.design.assembly_order import assembly_steps
+    from sheetgen.design.hardware import hardware_items
+
+    listed = {(h.item, h.spec) for h in hardware_items(demo_kit, demo_spec)}
+    assert len({spec for item, spec in listed if item == "bolt"}) >= 2, "the demo has two bolt sizes"
+    nuts = 0
+    for s in assembly_steps(demo_kit, demo_spec):
+        assert len(s.hardware_specs) == len(s.hardware)
+        fitted = [(item, spec) for (item, _), spec in zip(s.hardware, s.hardware_specs)]
+        assert set(fitted) <= listed, s.number
+        for item, spec in fitted:
+            if item == "nut":
+                nuts += 1
+                size = spec.split()[-1]  # "hexagon nut ISO 4032 M3"
+                assert any(i == "bolt" and f" {size} " in sp for i, sp in fitted), (s.number, spec)
+    assert nuts >= 2
 
 
 # ---------------------------------------------------------------------------

@@ -238,14 +238,16 @@ def _line_foot(kit: Kit, a: np.ndarray, group) -> np.ndarray:
     part = kit.part(name)
     for pl in part.placements:
         normal = _canonical(pl.matrix[:, 2])
-        if not np.allclose(normal, a, atol=1e-9):
+        # the stack's key holds the normal rounded (a tilted plate's normal is not exact): match it
+        # the same way, and measure along the unrounded normal as hole_stacks did
+        if tuple(round(float(v), 6) + 0.0 for v in normal) != tuple(float(v) for v in a):
             continue
         for c in part.circles:
             p0 = pl.apply(np.array([[c.x_mm, c.y_mm, 0.0]]))[0]
-            s0 = float(p0 @ a)
-            s1 = s0 + part.thickness_mm * float(pl.matrix[:, 2] @ a)
+            s0 = float(p0 @ normal)
+            s1 = s0 + part.thickness_mm * float(pl.matrix[:, 2] @ normal)
             if abs(min(s0, s1) - group[0][0]) < 1e-9 and abs(2 * c.radius_mm - group[0][2]) < 1e-9:
-                return p0 - s0 * a
+                return p0 - s0 * normal
     raise AssertionError("a hole of the stack is not in its part")  # pragma: no cover
 
 

@@ -91,7 +91,9 @@ def render_assembly_guide(title: str, steps, pictures: tuple[bytes, ...], descri
             out.append(_table(("part", "qty", "engraved"), rows, num=(1,)))
         bought = {n for h in hardware if h.item in dict(step.hardware) for n in (getattr(h, "parts", ()) or ())}
         hw = [(escape(c), "1", "") for c in step.components if c not in bought]
-        hw += [(escape(item), str(qty), escape(specs.get(item, ""))) for item, qty in step.hardware]
+        what = step.hardware_specs if len(step.hardware_specs) == len(step.hardware) else \
+            tuple(specs.get(item, "") for item, _ in step.hardware)  # each size its own spec
+        hw += [(escape(item), str(qty), escape(w)) for (item, qty), w in zip(step.hardware, what)]
         if hw:
             out.append(_table(("bought item", "qty", "what"), hw, num=(1,)))
         if step.notes:

@@ -2,21 +2,21 @@
 formulas for prisms on parallel axes (no cadquery; see the package notes)."""
 
 from __future__ import annotations
-from __future__ import annotations
 
 import math
 from dataclasses import dataclass
 
 import numpy as np
-import shapely
 from shapely import affinity
-from shapely.geometry import MultiPoint, Point, Polygon
+from shapely.geometry import Point, Polygon
 
 from sheetgen.errors import GeometryBug, ParameterError
-from sheetgen.geometry.shapes import GRID_MM, d_shape, disc, one_polygon, rect
-from sheetgen.design.kit import MESHING
-from sheetgen.design.part import Component, Kit
-from sheetgen.geometry.placement import Placement, mat3, place
+from sheetgen.geometry.shapes import one_polygon
+from sheetgen.design.part import Kit
+# the component solids follow one rule with the assembly guide; MOTOR is read by pairs and checks from here
+from sheetgen.design.prisms import MOTOR, component_prisms, mesh_pairs as _mesh_pairs, snap as _snap
+from sheetgen.geometry.placement import Placement
+from sheetgen.geometry.prism import AXIS_TOL as _AXIS_TOL, Prism, spun
 
 
 CONTACT_TOL_MM = 1e-3  # closer than this counts as touching
@@ -26,60 +26,11 @@ SWEEP_STEP_DEG = 1.0
 MAX_SWEEP_STEP_DEG = 2.0
 ROUND_TOL_MM = 1e-4  # ring vertices this close to one circle about the axle: the part turns in place
 CLOSEST_PAIRS = 5  # clearance pairs listed in the report
-MOTOR = "motor"  # the kit component that carries the pinion on its shaft
-_AXIS_TOL = 1e-9
-
-Y, Z = (0.0, 1.0, 0.0), (0.0, 0.0, 1.0)
 
 
 
 # ---------------------------------------------------------------------------
 # pure model
-
-
-@dataclass(frozen=True)
-class Prism:
-    """A polygon in a local x-y plane swept along local +z by ``depth_mm``,
-    carried into the kit frame (rotation 0) by ``placement``."""
-
-    outline: Polygon
-    depth_mm: float
-    placement: Placement
-
-    @property
-    def axis(self) -> np.ndarray:
-        return self.placement.matrix[:, 2]
-
-    @property
-    def axial(self) -> bool:
-        """Swept along the axle (x): the plate lies across the axle."""
-        return abs(abs(float(self.axis[0])) - 1.0) < _AXIS_TOL
-
-    def turned(self, angle_deg: float) -> "Prism":
-        return Prism(self.outline, self.depth_mm, self.placement.turned(angle_deg))
-
-    def corners(self) -> np.ndarray:
-        """Exterior vertices on both faces, in the kit frame."""
-        xy = np.asarray(self.outline.exterior.coords[:-1], dtype=float)
-        local = np.vstack([np.column_stack([xy, np.zeros(len(xy))]),
-                           np.column_stack([xy, np.full(len(xy), self.depth_mm)])])
-        return self.placement.apply(local)
-
-    def x_range_mm(self) -> tuple[float, float]:
-        c = self.corners()
-        return float(c[:, 0].min()), float(c[:, 0].max())
-
-    def yz_projection(self) -> Polygon:
-        """The prism seen along x: its outline for an axial prism (exact), else
-        the convex hull of its corners (contains the true projection)."""
-        if self.axial:
-            m = self.placement.matrix
-            t = self.placement.translation_mm
-            return affinity.affine_transform(self.outline, [m[1, 0], m[1, 1], m[2, 0], m[2, 1], t[1], t[2]])
-        hull = MultiPoint([tuple(p) for p in self.corners()[:, 1:]]).convex_hull
-        if not isinstance(hull, Polygon):  # a plate seen exactly edge-on along x and along its own thickness
-            hull = hull.buffer(1e-9)
-        return hull
 
 
 @dataclass(frozen=True)
@@ -101,15 +52,6 @@ class Body:
     def x_range_mm(self) -> tuple[float, float]:
         lo, hi = self.aabb()
         return float(lo[0]), float(hi[0])
-
-
-def spun(placement: Placement, angle_deg: float) -> Placement:
-    """The placement after turning the part about its own local z axis (through its local origin)."""
-    a = math.radians(angle_deg)
-    c, s = math.cos(a), math.sin(a)
-    rz = np.array([[c, -s, 0.0], [s, c, 0.0], [0.0, 0.0, 1.0]])
-    r = placement.matrix @ rz
-    return Placement(mat3(r), placement.translation_mm, placement.rotating)
 
 
 def mesh_turn_deg(wheel_teeth: int, pinion_teeth: int, wheel_at: Placement, pinion_at: Placement) -> float:
@@ -141,11 +83,6 @@ def mesh_turn_deg(wheel_teeth: int, pinion_teeth: int, wheel_at: Placement, pini
     return math.degrees((theta_p + delta_p) % pitch_p)
 
 
-def _mesh_pairs(kit: Kit) -> list[tuple[str, str]]:
-    names = {p.name for p in kit.parts}
-    return sorted((w, p) for w, p in MESHING if w in names and p in names)
-
-
 def mesh_turns_deg(kit: Kit, spec) -> dict[str, float]:
     """The pinion's turn about its own axis for each meshing pair in the kit."""
     out = {}
@@ -153,72 +90,6 @@ def mesh_turns_deg(kit: Kit, spec) -> dict[str, float]:
         out[pinion] = mesh_turn_deg(spec.drive.wheel_teeth, spec.drive.pinion_teeth,
                                     kit.part(wheel).placements[0], kit.part(pinion).placements[0])
     return out
-
-
-def _snap(poly: Polygon) -> Polygon:
-    return shapely.set_precision(poly, GRID_MM)
-
-
-def _bore(outline: Polygon) -> Polygon:
-    """The hole of a gear outline that holds its centre (local origin)."""
-    centre = shapely.Point(0.0, 0.0)
-    for ring in outline.interiors:
-        hole = Polygon(ring)
-        if hole.contains(centre):
-            return hole
-    raise GeometryBug("the pinion outline has no bore around its centre")
-
-
-def _component_pieces(comp: Component, kit: Kit, spec, turns: dict[str, float]) -> tuple[Prism, ...]:
-    cx, cy, cz = comp.centre_mm
-    if comp.shape == "point":
-        return ()
-    if comp.shape == "box":
-        dx, dy, dz = comp.size_mm
-        ident = ((1.0, 0.0, 0.0), (0.0, 1.0, 0.0), (0.0, 0.0, 1.0))
-        pieces = [Prism(rect(-dx / 2, -dy / 2, dx / 2, dy / 2), dz,
-                        Placement(ident, (cx, cy, cz - dz / 2), comp.rotating))]
-        if comp.name == MOTOR:
-            pieces += _motor_shaft(comp, kit, spec, turns)
-        return tuple(pieces)
-    if comp.shape == "cylinder_x":
-        length, diameter, _ = comp.size_mm
-        # the same polygon the bores are cut from (chords within 0.01 mm of the
-        # circle), so a press bore meets the rod face to face
-        rod = _snap(disc(0.0, 0.0, diameter / 2))
-        x0, x1 = cx - length / 2, cx + length / 2
-        if comp.flat_mm > 0 and comp.flat_from_x_mm <= x0 + 1e-9:
-            # keyed its whole length: the D profile the keyed bores are cut from
-            return (Prism(_snap(d_shape(0.0, 0.0, diameter, comp.flat_mm)), length,
-                          place(Y, Z, (x0, cy, cz), comp.rotating)),)
-        if comp.flat_mm > 0 and x0 < comp.flat_from_x_mm < x1:
-            # a keyed rod: the D profile the keyed bores are cut from, full length (the first
-            # piece, whose centre weighs the component), and the round rod up to the flat's start
-            d_rod = _snap(d_shape(0.0, 0.0, diameter, comp.flat_mm))
-            xf = comp.flat_from_x_mm
-            return (Prism(d_rod, length, place(Y, Z, (x0, cy, cz), comp.rotating)),
-                    Prism(rod, xf - x0, place(Y, Z, (x0, cy, cz), comp.rotating)))
-        return (Prism(rod, length, place(Y, Z, (x0, cy, cz), comp.rotating)),)
-    raise GeometryBug(f"component {comp.name}: unknown shape {comp.shape!r}")
-
-
-def _motor_shaft(comp: Component, kit: Kit, spec, turns: dict[str, float]) -> list[Prism]:
-    """The motor's output shaft: the pinion's nominal bore, from the motor's
-    mounting face ``motor.shaft_length`` along -x, turned with the pinion."""
-    pinions = [p for _, p in _mesh_pairs(kit)]
-    if not pinions:
-        return []
-    pinion = kit.part(pinions[0])
-    at = spun(pinion.placements[0], turns.get(pinion.name, 0.0))
-    if abs(float(at.matrix[0, 2]) - 1.0) > _AXIS_TOL:
-        raise GeometryBug("the pinion does not face +x, the motor shaft's direction")
-    _, py, pz = at.translation_mm
-    _, cy, cz = comp.centre_mm
-    if abs(py - cy) > 1e-6 or abs(pz - cz) > 1e-6:
-        raise GeometryBug(f"the pinion axis ({py:.3f}, {pz:.3f}) is off the motor's ({cy:.3f}, {cz:.3f})")
-    face_x = comp.centre_mm[0] - comp.size_mm[0] / 2
-    length = spec.motor.shaft_length_mm
-    return [Prism(_bore(pinion.outline), length, Placement(at.rotation, (face_x - length, py, pz), False))]
 
 
 def _part_pieces(part, at: Placement) -> tuple[Prism, ...]:
@@ -251,7 +122,7 @@ def model_bodies(kit: Kit, spec) -> tuple[Body, ...]:
             out.append(Body(f"{part.name}#{i + 1}", part.name, "part", pl.rotating,
                             _part_pieces(part, at), part.material))
     for comp in kit.components:
-        pieces = _component_pieces(comp, kit, spec, turns)
+        pieces = component_prisms(comp, kit, spec.motor.shaft_length_mm, turns)
         if pieces:
             out.append(Body(comp.name, comp.name, "component", comp.rotating, pieces, "", float(comp.mass_kg)))
     names = [b.name for b in out]

@@ -16,8 +16,9 @@ import numpy as np
 import shapely
 from shapely.geometry import Polygon
 
-from sheetgen.design.assembly_order import Prism, Step, solid_items
+from sheetgen.design.assembly_order import Step, solid_items
 from sheetgen.design.part import Kit
+from sheetgen.geometry.prism import Prism
 
 NEW_COLOUR = "#d9480f"  # the items put in at this step
 OLD_COLOUR = "#b8b8b8"  # the items already in place
