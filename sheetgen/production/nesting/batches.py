@@ -68,9 +68,9 @@ def sheet_run(lib, counts, usable, lower, work, budget, rng, clock, jobs):
         # first layout, always finished (bounded work, never cut by the clock, so the same on any
         # machine); it may use the whole run's budget, the first batch's NFPs serving the rest
         got = column_layout(lib, batch, usable, work, max(stage_end, budget), share_lower,
-                            finished=3) or []
+                            stop=clock.stop, finished=3) or []
         unplaced_items: list[int] = []
-        if not got or (last and len(got) > share_lower and work.units < stage_end):
+        if not got or (last and len(got) > share_lower and work.units < stage_end and not clock.stop()):
             stage = Budget(work, work.units + int(max(0, stage_end - work.units) * (1 - ASSIGN_SHARE)))
             stages.append(stage)
             placements, unplaced_parts, n_sheets = sheet_search(
@@ -87,7 +87,7 @@ def sheet_run(lib, counts, usable, lower, work, budget, rng, clock, jobs):
             stages[-1].spent()
         if got:  # a longer remnant on the batch's last sheet (the run's last, or repeated with its block);
             # a small fixed amount of work, never cut by the clock, so the same on any machine
-            got = compact_last(lib, got, usable, work, work.units + COMPACT_UNITS, rng, lambda: False)
+            got = compact_last(lib, got, usable, work, work.units + COMPACT_UNITS, rng, clock.stop)
         if last:
             sheets.extend(got)
             unplaced.extend(unplaced_items)

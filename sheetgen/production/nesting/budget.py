@@ -29,8 +29,8 @@ EFFORT_PER_SECOND = WORK_PER_SECOND / EFFORT_UNITS
 class Clock:
     """The wall-clock ceiling and the progress line; remembers whether the ceiling fired."""
 
-    def __init__(self, time_limit_s: float, progress):
-        self.t0 = time.monotonic()
+    def __init__(self, time_limit_s: float, progress, t0: float | None = None):
+        self.t0 = time.monotonic() if t0 is None else t0
         self.deadline = self.t0 + time_limit_s
         self.progress = progress
         self.last = -1.0

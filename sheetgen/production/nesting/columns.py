@@ -128,7 +128,7 @@ def column_layout(lib: ShapeLibrary, counts: list[int], usable, work: Work, budg
     for key in sorted(found)[:finished]:
         if best is not None and (work.units >= budget_units or stop() or len(best[1]) <= lower):
             break
-        placed = _finish(lib, classes, counts, found[key], usable, work)
+        placed = _finish(lib, classes, counts, found[key], usable, work, stop)
         if placed is None:
             continue
         final = (len(placed), sum(lib.shapes[sid].area for _i, sid, _x, _y in placed[-1]))
@@ -137,9 +137,11 @@ def column_layout(lib: ShapeLibrary, counts: list[int], usable, work: Work, budg
     return None if best is None else best[1]
 
 
-def _finish(lib: ShapeLibrary, classes, counts: list[int], layouts, usable, work: Work):
+def _finish(lib: ShapeLibrary, classes, counts: list[int], layouts, usable, work: Work,
+            stop: Callable[[], bool] = lambda: False):
     """The column sheets with concrete items at grid positions, then the rest
-    placed (:func:`_place_rest`); None if rounding pushed a part out."""
+    placed (:func:`_place_rest`, which ``stop()`` cuts short); None if rounding
+    pushed a part out."""
     x0, y0, x1, y1 = usable
     pool = [[i for i in items for _ in range(counts[i])] for items in classes]
     used = [0] * len(classes)
@@ -167,7 +169,7 @@ def _finish(lib: ShapeLibrary, classes, counts: list[int], layouts, usable, work
         placed.append(out)
     rest = [i for k, items in enumerate(classes) for i in pool[k][used[k]:]]
     if rest:
-        sheets, placed = _place_rest(lib, rest, usable, sheets, placed, work)
+        sheets, placed = _place_rest(lib, rest, usable, sheets, placed, work, stop)
     return placed
 
 
@@ -331,17 +333,65 @@ def _best_sheet(kinds, left: list[int], large: list[int], W: float, H: float, fw
     return sorted(best[1], key=lambda k: -k[0])
 
 
-def _place_rest(lib: ShapeLibrary, rest: list[int], usable, sheets: list[Sheet], placed, work: Work):
+def _place_rest(lib: ShapeLibrary, rest: list[int], usable, sheets: list[Sheet], placed, work: Work,
+                stop: Callable[[], bool] = lambda: False):
     """The remaining parts, largest convex hull first, each onto the first
-    sheet with room (windows included), new sheets when none has."""
+    sheet with room (windows included), new sheets when none has. When
+    ``stop()`` says so (the wall-clock ceiling), the parts not yet placed go
+    in rows of boxes onto new sheets (:func:`box_rows`): the layout is always
+    complete, and cheap to finish."""
     hull = lib.hull_areas()
     order = sorted(range(len(rest)), key=lambda p: (-hull[rest[p]], rest[p], p))
     dec = Decoder(lib, rest, usable, len(rest) + len(sheets), work)
     st = State(tuple(sheets), tuple(frozenset() for _ in sheets), (), (), 0.0)
-    for p in order:
+    left: list[int] = []
+    for k, p in enumerate(order):
+        if stop():
+            left = order[k:]
+            break
         st = dec.step(st, p, None, RULES[0])
     out = [list(x) for x in placed] + [[] for _ in range(len(st.sheets) - len(placed))]
     for part, si, sid, px, py in st.placements:
         out[si].append((rest[part], sid, px, py))
+    if left:
+        out.extend(box_rows(lib, [rest[p] for p in left], usable))
     return list(st.sheets), out
+
+
+def box_rows(lib: ShapeLibrary, items: list[int], usable) -> list[list[tuple[int, int, int, int]]]:
+    """``items`` on new sheets in rows of their bounding boxes (tallest first,
+    each row left to right, rows bottom to top, a part at least the spacing
+    from the next): no no-fit polygon, so quick, and valid for any outline
+    because boxes the spacing apart hold parts the spacing apart. Each item
+    lies in the angle of its lowest box that fits the usable area. Grid
+    positions are rounded up and kept inside the usable area, so a gap may be
+    short of the spacing by a grid unit (about 1e-10 mm), far below the
+    tolerance, as in :func:`_finish`."""
+    x0, y0, x1, y1 = usable
+    s, scale = lib.spacing, lib.scale
+
+    def shape(i: int) -> int:
+        fits = [sid for sid in lib.item_shapes[i]
+                if lib.shapes[sid].width <= x1 - x0 and lib.shapes[sid].height <= y1 - y0]
+        return min(fits, key=lambda sid: (lib.shapes[sid].height, sid))
+
+    entries = sorted(((lib.shapes[shape(i)].height, lib.shapes[shape(i)].width, i, shape(i)) for i in items),
+                     key=lambda e: (-e[0], -e[1], e[2], e[3]))
+    sheets: list[list[tuple[int, int, int, int]]] = []
+    cur: list[tuple[int, int, int, int]] = []
+    x = y = row_h = 0.0   # cursor from the usable area's lower-left corner, mm
+    for h, w, i, sid in entries:
+        if cur and x + w > x1 - x0:          # next row
+            x, y, row_h = 0.0, y + row_h + s, 0.0
+        if cur and y + h > y1 - y0:          # next sheet
+            sheets.append(cur)
+            cur, x, y, row_h = [], 0.0, 0.0, 0.0
+        px = min(math.ceil((x0 + x) * scale), math.floor((x1 - w) * scale))
+        py = min(math.ceil((y0 + y) * scale), math.floor((y1 - h) * scale))
+        cur.append((i, sid, px, py))
+        x += w + s
+        row_h = max(row_h, h)
+    if cur:
+        sheets.append(cur)
+    return sheets
 

@@ -33,6 +33,7 @@ from __future__ import annotations
 
 import math
 import random
+import time
 from collections.abc import Callable, Sequence
 
 import numpy as np
@@ -99,12 +100,14 @@ def nest(items: Sequence[NestItem], *, sheet_mm: tuple[float, float] | None = No
     the :data:`SEARCHES` improvement searches of each stage side by side; the
     layout does not depend on it.
     """
+    t_start = time.monotonic()
     _validate_items(items)
     if (sheet_mm is None) == (strip_width_mm is None):
         raise SheetgenError("give either a sheet size or a strip width, not both and not neither")
     margin = _check_number("margin", margin_mm, 0.0)
     spacing = _check_number("spacing", spacing_mm, 0.0)
     limit = _check_number("time limit", time_limit_s, 0.0)
+    clock = Clock(limit, progress, t_start)  # the ceiling covers the whole call, preparation included
     work_effort = limit * EFFORT_PER_SECOND if effort is None else _check_number("effort", effort, 0.0)
     check_ceiling(items, memory_limit_bytes)
     if sheet_mm is not None:
@@ -150,7 +153,6 @@ def nest(items: Sequence[NestItem], *, sheet_mm: tuple[float, float] | None = No
     work = Work()
     lib.work = work
     budget = int(work_effort * EFFORT_UNITS)
-    clock = Clock(limit, progress)
     counts = [int(it.qty) for it in items]
 
     if strip:
