@@ -246,11 +246,11 @@ def _result(items, lib: ShapeLibrary, sheets, unplaced_items, sheet_size, margin
             area_lower: int, lower: int, stopped_by: str, work_units: int) -> NestResult:
     """The NestResult of sheets given as lists of (item, shape id, px, py);
     copies are numbered in placement order, then the unplaced ones."""
-    per_sheet: list[list[PlacedPart]] = []
     turned_cache: dict[tuple[int, float], Polygon] = {}
     copies = [0] * len(items)
-    for sheet in sheets:
-        out = []
+    records = []   # (sheet, item, copy, x, y, angle) in placement order
+    turned_list = []
+    for k, sheet in enumerate(sheets):
         for item, sid, px, py in sheet:
             sh = lib.shapes[sid]
             x, y = px / lib.scale - sh.offset[0], py / lib.scale - sh.offset[1]
@@ -258,11 +258,20 @@ def _result(items, lib: ShapeLibrary, sheets, unplaced_items, sheet_size, margin
             turned = turned_cache.get(tk)
             if turned is None:
                 turned = turned_cache[tk] = rotate_ccw(items[item].polygon, sh.angle_deg)
-            offset = np.array([x, y])
-            poly = shapely.transform(turned, lambda c: c + offset)
-            out.append(PlacedPart(item, copies[item], float(x), float(y), sh.angle_deg, poly))
+            records.append((k, item, copies[item], x, y, sh.angle_deg))
+            turned_list.append(turned)
             copies[item] += 1
-        per_sheet.append(out)
+    # every part moved in one call (the same sums as one call per part, so the same coordinates)
+    moved: list = []
+    if records:
+        geoms = np.empty(len(turned_list), dtype=object)
+        geoms[:] = turned_list
+        shift = np.repeat(np.array([(r[3], r[4]) for r in records], dtype=float),
+                          shapely.get_num_coordinates(geoms), axis=0)
+        moved = list(shapely.transform(geoms, lambda c: c + shift))
+    per_sheet: list[list[PlacedPart]] = [[] for _ in sheets]
+    for (k, item, copy, x, y, angle), poly in zip(records, moved):
+        per_sheet[k].append(PlacedPart(item, copy, float(x), float(y), angle, poly))
     unplaced = []
     for item in unplaced_items:
         unplaced.append((item, copies[item]))
