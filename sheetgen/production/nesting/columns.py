@@ -297,12 +297,15 @@ def _best_sheet(kinds, left: list[int], large: list[int], W: float, H: float, fw
     kinds = [kinds[j] for j in order]
     values = [value_of[j] for j in order]
     dens = [v / (k[0] * H) for v, k in zip(values, kinds)]
-
-    def need_ok(kind, have: list[int]) -> bool:
+    needs = []   # per kind, (class, parts of it in the column), counted once
+    for kind in kinds:
         need: dict[int, int] = {}
         for b in kind[1]:
             need[b.cls] = need.get(b.cls, 0) + 1
-        return all(have[c] >= n for c, n in need.items())
+        needs.append(tuple(need.items()))
+
+    def need_ok(j: int, have: list[int]) -> bool:
+        return all(have[c] >= n for c, n in needs[j])
 
     def dfs(start: int, width: float, value: float, cols: list, have: list[int]) -> None:
         nodes[0] += 1
@@ -315,7 +318,7 @@ def _best_sheet(kinds, left: list[int], large: list[int], W: float, H: float, fw
             # the kinds are by density: nothing after j can beat this bound
             if value + (W - width) * H * dens[j] <= best[0] + 1e-9:
                 return
-            if width + kind[0] > W or not need_ok(kind, have):
+            if width + kind[0] > W or not need_ok(j, have):
                 continue
             for b in kind[1]:
                 have[b.cls] -= 1

@@ -242,6 +242,9 @@ def _empty_last(lib, sheets, usable, work, stop):
     return [list(s) + added.get(k, []) for k, s in enumerate(sheets[:-1])]
 
 
+MOVE_BLOCK = 256   # placed parts moved per shapely call when building the result
+
+
 def _result(items, lib: ShapeLibrary, sheets, unplaced_items, sheet_size, margin, spacing, strip_length,
             area_lower: int, lower: int, stopped_by: str, work_units: int) -> NestResult:
     """The NestResult of sheets given as lists of (item, shape id, px, py);
@@ -261,14 +264,15 @@ def _result(items, lib: ShapeLibrary, sheets, unplaced_items, sheet_size, margin
             records.append((k, item, copies[item], x, y, sh.angle_deg))
             turned_list.append(turned)
             copies[item] += 1
-    # every part moved in one call (the same sums as one call per part, so the same coordinates)
+    # parts moved a block at a time (the same sums as one call per part, so the same coordinates;
+    # blocks keep the coordinate arrays small)
     moved: list = []
-    if records:
-        geoms = np.empty(len(turned_list), dtype=object)
-        geoms[:] = turned_list
-        shift = np.repeat(np.array([(r[3], r[4]) for r in records], dtype=float),
+    for b0 in range(0, len(records), MOVE_BLOCK):
+        geoms = np.empty(len(turned_list[b0:b0 + MOVE_BLOCK]), dtype=object)
+        geoms[:] = turned_list[b0:b0 + MOVE_BLOCK]
+        shift = np.repeat(np.array([(r[3], r[4]) for r in records[b0:b0 + MOVE_BLOCK]], dtype=float),
                           shapely.get_num_coordinates(geoms), axis=0)
-        moved = list(shapely.transform(geoms, lambda c: c + shift))
+        moved.extend(shapely.transform(geoms, lambda c: c + shift))
     per_sheet: list[list[PlacedPart]] = [[] for _ in sheets]
     for (k, item, copy, x, y, angle), poly in zip(records, moved):
         per_sheet[k].append(PlacedPart(item, copy, float(x), float(y), angle, poly))
