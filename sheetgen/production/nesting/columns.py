@@ -341,8 +341,8 @@ def _place_rest(lib: ShapeLibrary, rest: list[int], usable, sheets: list[Sheet],
     """The remaining parts, largest convex hull first, each onto the first
     sheet with room (windows included), new sheets when none has. When
     ``stop()`` says so (the wall-clock ceiling), the parts not yet placed go
-    in rows of boxes onto new sheets (:func:`box_rows`): the layout is always
-    complete, and cheap to finish."""
+    in rows of boxes into the free ends of the sheets and onto new sheets
+    (:func:`box_rows`): the layout is always complete, and cheap to finish."""
     hull = lib.hull_areas()
     order = sorted(range(len(rest)), key=lambda p: (-hull[rest[p]], rest[p], p))
     dec = Decoder(lib, rest, usable, len(rest) + len(sheets), work)
@@ -357,44 +357,71 @@ def _place_rest(lib: ShapeLibrary, rest: list[int], usable, sheets: list[Sheet],
     for part, si, sid, px, py in st.placements:
         out[si].append((rest[part], sid, px, py))
     if left:
-        out.extend(box_rows(lib, [rest[p] for p in left], usable))
+        added, new = box_rows(lib, [rest[p] for p in left], usable,
+                              [(k, sh.x_max) for k, sh in enumerate(st.sheets) if sh.placed])
+        for k, parts in added.items():
+            out[k].extend(parts)
+        out.extend(new)
     return list(st.sheets), out
 
 
-def box_rows(lib: ShapeLibrary, items: list[int], usable) -> list[list[tuple[int, int, int, int]]]:
-    """``items`` on new sheets in rows of their bounding boxes (tallest first,
-    each row left to right, rows bottom to top, a part at least the spacing
-    from the next): no no-fit polygon, so quick, and valid for any outline
-    because boxes the spacing apart hold parts the spacing apart. Each item
-    lies in the angle of its lowest box that fits the usable area. Grid
-    positions are rounded up and kept inside the usable area, so a gap may be
-    short of the spacing by a grid unit (about 1e-10 mm), far below the
-    tolerance, as in :func:`_finish`."""
+def box_rows(lib: ShapeLibrary, items: list[int], usable,
+             ends: list[tuple[int, float]] = ()) -> tuple[dict[int, list], list[list[tuple[int, int, int, int]]]]:
+    """``items`` in rows of their bounding boxes (tallest first, each row left
+    to right, rows bottom to top, a part at least the spacing from the next):
+    first into the free ends of existing sheets (``ends``: (sheet index, x in
+    mm where its parts' boxes end), the free end starting the spacing further
+    on), then onto new sheets. No no-fit polygon, so quick, and valid for any
+    outline because boxes the spacing apart hold parts the spacing apart.
+    Each item lies in the angle of its lowest box that fits the usable area.
+    Grid positions are rounded up and kept inside the usable area, so a gap
+    may be short of the spacing by a few grid units (about 1e-9 mm), far below
+    the tolerance, as in :func:`_finish`. Returns (parts added per existing sheet,
+    new sheets), parts as (item, shape id, px, py)."""
     x0, y0, x1, y1 = usable
     s, scale = lib.spacing, lib.scale
+    tol = TOL_UNITS / scale   # float rounding; positions are clamped into the usable area
 
     def shape(i: int) -> int:
         fits = [sid for sid in lib.item_shapes[i]
                 if lib.shapes[sid].width <= x1 - x0 and lib.shapes[sid].height <= y1 - y0]
         return min(fits, key=lambda sid: (lib.shapes[sid].height, sid))
 
-    entries = sorted(((lib.shapes[shape(i)].height, lib.shapes[shape(i)].width, i, shape(i)) for i in items),
-                     key=lambda e: (-e[0], -e[1], e[2], e[3]))
-    sheets: list[list[tuple[int, int, int, int]]] = []
-    cur: list[tuple[int, int, int, int]] = []
-    x = y = row_h = 0.0   # cursor from the usable area's lower-left corner, mm
-    for h, w, i, sid in entries:
-        if cur and x + w > x1 - x0:          # next row
-            x, y, row_h = 0.0, y + row_h + s, 0.0
-        if cur and y + h > y1 - y0:          # next sheet
-            sheets.append(cur)
-            cur, x, y, row_h = [], 0.0, 0.0, 0.0
-        px = min(math.ceil((x0 + x) * scale), math.floor((x1 - w) * scale))
-        py = min(math.ceil((y0 + y) * scale), math.floor((y1 - h) * scale))
-        cur.append((i, sid, px, py))
-        x += w + s
-        row_h = max(row_h, h)
-    if cur:
-        sheets.append(cur)
-    return sheets
+    left = sorted(((lib.shapes[shape(i)].height, lib.shapes[shape(i)].width, i, shape(i)) for i in items),
+                  key=lambda e: (-e[0], -e[1], e[2], e[3]))
 
+    def fill(bx: float) -> list[tuple[int, int, int, int]]:
+        """Rows from x = bx to the usable area's right edge; takes what fits out of ``left``."""
+        nonlocal left
+        out: list[tuple[int, int, int, int]] = []
+        rest = []
+        x = y = row_h = 0.0   # cursor from (bx, y0), mm
+        for e in left:
+            h, w, i, sid = e
+            if bx + x + w > x1 + tol and out and bx + w <= x1 + tol and y + row_h + s + h <= y1 - y0 + tol:
+                x, y, row_h = 0.0, y + row_h + s, 0.0
+            if bx + x + w > x1 + tol or y + h > y1 - y0 + tol:
+                rest.append(e)
+                continue
+            px = min(math.ceil((bx + x) * scale), math.floor((x1 - w) * scale))
+            py = min(math.ceil((y0 + y) * scale), math.floor((y1 - h) * scale))
+            out.append((i, sid, px, py))
+            x += w + s
+            row_h = max(row_h, h)
+        left = rest
+        return out
+
+    added: dict[int, list] = {}
+    for k, x_end in ends:
+        if not left:
+            break
+        got = fill(max(x0, x_end + s))
+        if got:
+            added[k] = got
+    new: list[list[tuple[int, int, int, int]]] = []
+    while left:
+        got = fill(x0)
+        if not got:  # cannot happen: every part fits the usable area in some angle (checked by nest)
+            raise GeometryBug(f"item {left[0][2]}: no room on an empty sheet for its box")
+        new.append(got)
+    return added, new
