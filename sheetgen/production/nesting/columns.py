@@ -25,7 +25,7 @@ sheet) than the order search.
 from __future__ import annotations
 
 import math
-from collections.abc import Callable
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 
 from sheetgen.errors import GeometryBug
@@ -366,7 +366,7 @@ def _place_rest(lib: ShapeLibrary, rest: list[int], usable, sheets: list[Sheet],
 
 
 def box_rows(lib: ShapeLibrary, items: list[int], usable,
-             ends: list[tuple[int, float]] = ()) -> tuple[dict[int, list], list[list[tuple[int, int, int, int]]]]:
+             ends: Sequence[tuple[int, float]] = ()) -> tuple[dict[int, list], list[list[tuple[int, int, int, int]]]]:
     """``items`` in rows of their bounding boxes (tallest first, each row left
     to right, rows bottom to top, a part at least the spacing from the next):
     first into the free ends of existing sheets (``ends``: (sheet index, x in
