@@ -65,12 +65,14 @@ def sheet_run(lib, counts, usable, lower, work, budget, rng, clock, jobs):
         # a batch may use one sheet more than its share of the whole run's bound
         share_lower = 1 if not last else max(1, lower - len(sheets))
         # column layouts of the large parts first; the order search when they miss the bound. Like a
-        # first layout, always finished (bounded work, never cut by the clock, so the same on any
-        # machine); it may use the whole run's budget, the first batch's NFPs serving the rest
+        # first layout, always finished: bounded work, the same on any machine unless the run's
+        # wall-clock ceiling fires, which cuts the finishing short (the parts not yet placed go in
+        # rows of boxes onto new sheets); it may use the whole run's budget, the first batch's NFPs
+        # serving the rest
         got = column_layout(lib, batch, usable, work, max(stage_end, budget), share_lower,
-                            finished=3) or []
+                            stop=clock.stop, finished=3) or []
         unplaced_items: list[int] = []
-        if not got or (last and len(got) > share_lower and work.units < stage_end):
+        if not got or (last and len(got) > share_lower and work.units < stage_end and not clock.stop()):
             stage = Budget(work, work.units + int(max(0, stage_end - work.units) * (1 - ASSIGN_SHARE)))
             stages.append(stage)
             placements, unplaced_parts, n_sheets = sheet_search(
@@ -86,8 +88,8 @@ def sheet_run(lib, counts, usable, lower, work, budget, rng, clock, jobs):
             got = reassign(lib, got, usable, share_lower, work, stage_end, rng, stage_clock.stop)
             stages[-1].spent()
         if got:  # a longer remnant on the batch's last sheet (the run's last, or repeated with its block);
-            # a small fixed amount of work, never cut by the clock, so the same on any machine
-            got = compact_last(lib, got, usable, work, work.units + COMPACT_UNITS, rng, lambda: False)
+            # a small fixed amount of work, cut only by the run's wall-clock ceiling
+            got = compact_last(lib, got, usable, work, work.units + COMPACT_UNITS, rng, clock.stop)
         if last:
             sheets.extend(got)
             unplaced.extend(unplaced_items)

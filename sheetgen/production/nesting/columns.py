@@ -25,7 +25,7 @@ sheet) than the order search.
 from __future__ import annotations
 
 import math
-from collections.abc import Callable
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 
 from sheetgen.errors import GeometryBug
@@ -128,7 +128,7 @@ def column_layout(lib: ShapeLibrary, counts: list[int], usable, work: Work, budg
     for key in sorted(found)[:finished]:
         if best is not None and (work.units >= budget_units or stop() or len(best[1]) <= lower):
             break
-        placed = _finish(lib, classes, counts, found[key], usable, work)
+        placed = _finish(lib, classes, counts, found[key], usable, work, stop)
         if placed is None:
             continue
         final = (len(placed), sum(lib.shapes[sid].area for _i, sid, _x, _y in placed[-1]))
@@ -137,9 +137,11 @@ def column_layout(lib: ShapeLibrary, counts: list[int], usable, work: Work, budg
     return None if best is None else best[1]
 
 
-def _finish(lib: ShapeLibrary, classes, counts: list[int], layouts, usable, work: Work):
+def _finish(lib: ShapeLibrary, classes, counts: list[int], layouts, usable, work: Work,
+            stop: Callable[[], bool] = lambda: False):
     """The column sheets with concrete items at grid positions, then the rest
-    placed (:func:`_place_rest`); None if rounding pushed a part out."""
+    placed (:func:`_place_rest`, which ``stop()`` cuts short); None if rounding
+    pushed a part out."""
     x0, y0, x1, y1 = usable
     pool = [[i for i in items for _ in range(counts[i])] for items in classes]
     used = [0] * len(classes)
@@ -167,7 +169,7 @@ def _finish(lib: ShapeLibrary, classes, counts: list[int], layouts, usable, work
         placed.append(out)
     rest = [i for k, items in enumerate(classes) for i in pool[k][used[k]:]]
     if rest:
-        sheets, placed = _place_rest(lib, rest, usable, sheets, placed, work)
+        sheets, placed = _place_rest(lib, rest, usable, sheets, placed, work, stop)
     return placed
 
 
@@ -295,12 +297,15 @@ def _best_sheet(kinds, left: list[int], large: list[int], W: float, H: float, fw
     kinds = [kinds[j] for j in order]
     values = [value_of[j] for j in order]
     dens = [v / (k[0] * H) for v, k in zip(values, kinds)]
-
-    def need_ok(kind, have: list[int]) -> bool:
+    needs = []   # per kind, (class, parts of it in the column), counted once
+    for kind in kinds:
         need: dict[int, int] = {}
         for b in kind[1]:
             need[b.cls] = need.get(b.cls, 0) + 1
-        return all(have[c] >= n for c, n in need.items())
+        needs.append(tuple(need.items()))
+
+    def need_ok(j: int, have: list[int]) -> bool:
+        return all(have[c] >= n for c, n in needs[j])
 
     def dfs(start: int, width: float, value: float, cols: list, have: list[int]) -> None:
         nodes[0] += 1
@@ -313,7 +318,7 @@ def _best_sheet(kinds, left: list[int], large: list[int], W: float, H: float, fw
             # the kinds are by density: nothing after j can beat this bound
             if value + (W - width) * H * dens[j] <= best[0] + 1e-9:
                 return
-            if width + kind[0] > W or not need_ok(kind, have):
+            if width + kind[0] > W or not need_ok(j, have):
                 continue
             for b in kind[1]:
                 have[b.cls] -= 1
@@ -331,17 +336,92 @@ def _best_sheet(kinds, left: list[int], large: list[int], W: float, H: float, fw
     return sorted(best[1], key=lambda k: -k[0])
 
 
-def _place_rest(lib: ShapeLibrary, rest: list[int], usable, sheets: list[Sheet], placed, work: Work):
+def _place_rest(lib: ShapeLibrary, rest: list[int], usable, sheets: list[Sheet], placed, work: Work,
+                stop: Callable[[], bool] = lambda: False):
     """The remaining parts, largest convex hull first, each onto the first
-    sheet with room (windows included), new sheets when none has."""
+    sheet with room (windows included), new sheets when none has. When
+    ``stop()`` says so (the wall-clock ceiling), the parts not yet placed go
+    in rows of boxes into the free ends of the sheets and onto new sheets
+    (:func:`box_rows`): the layout is always complete, and cheap to finish."""
     hull = lib.hull_areas()
     order = sorted(range(len(rest)), key=lambda p: (-hull[rest[p]], rest[p], p))
     dec = Decoder(lib, rest, usable, len(rest) + len(sheets), work)
     st = State(tuple(sheets), tuple(frozenset() for _ in sheets), (), (), 0.0)
-    for p in order:
+    left: list[int] = []
+    for k, p in enumerate(order):
+        if stop():
+            left = order[k:]
+            break
         st = dec.step(st, p, None, RULES[0])
     out = [list(x) for x in placed] + [[] for _ in range(len(st.sheets) - len(placed))]
     for part, si, sid, px, py in st.placements:
         out[si].append((rest[part], sid, px, py))
+    if left:
+        added, new = box_rows(lib, [rest[p] for p in left], usable,
+                              [(k, sh.x_max) for k, sh in enumerate(st.sheets) if sh.placed])
+        for k, parts in added.items():
+            out[k].extend(parts)
+        out.extend(new)
     return list(st.sheets), out
 
+
+def box_rows(lib: ShapeLibrary, items: list[int], usable,
+             ends: Sequence[tuple[int, float]] = ()) -> tuple[dict[int, list], list[list[tuple[int, int, int, int]]]]:
+    """``items`` in rows of their bounding boxes (tallest first, each row left
+    to right, rows bottom to top, a part at least the spacing from the next):
+    first into the free ends of existing sheets (``ends``: (sheet index, x in
+    mm where its parts' boxes end), the free end starting the spacing further
+    on), then onto new sheets. No no-fit polygon, so quick, and valid for any
+    outline because boxes the spacing apart hold parts the spacing apart.
+    Each item lies in the angle of its lowest box that fits the usable area.
+    Grid positions are rounded up and kept inside the usable area, so a gap
+    may be short of the spacing by a few grid units (about 1e-9 mm), far below
+    the tolerance, as in :func:`_finish`. Returns (parts added per existing sheet,
+    new sheets), parts as (item, shape id, px, py)."""
+    x0, y0, x1, y1 = usable
+    s, scale = lib.spacing, lib.scale
+    tol = TOL_UNITS / scale   # float rounding; positions are clamped into the usable area
+
+    def shape(i: int) -> int:
+        fits = [sid for sid in lib.item_shapes[i]
+                if lib.shapes[sid].width <= x1 - x0 and lib.shapes[sid].height <= y1 - y0]
+        return min(fits, key=lambda sid: (lib.shapes[sid].height, sid))
+
+    left = sorted(((lib.shapes[shape(i)].height, lib.shapes[shape(i)].width, i, shape(i)) for i in items),
+                  key=lambda e: (-e[0], -e[1], e[2], e[3]))
+
+    def fill(bx: float) -> list[tuple[int, int, int, int]]:
+        """Rows from x = bx to the usable area's right edge; takes what fits out of ``left``."""
+        nonlocal left
+        out: list[tuple[int, int, int, int]] = []
+        rest = []
+        x = y = row_h = 0.0   # cursor from (bx, y0), mm
+        for e in left:
+            h, w, i, sid = e
+            if bx + x + w > x1 + tol and out and bx + w <= x1 + tol and y + row_h + s + h <= y1 - y0 + tol:
+                x, y, row_h = 0.0, y + row_h + s, 0.0
+            if bx + x + w > x1 + tol or y + h > y1 - y0 + tol:
+                rest.append(e)
+                continue
+            px = min(math.ceil((bx + x) * scale), math.floor((x1 - w) * scale))
+            py = min(math.ceil((y0 + y) * scale), math.floor((y1 - h) * scale))
+            out.append((i, sid, px, py))
+            x += w + s
+            row_h = max(row_h, h)
+        left = rest
+        return out
+
+    added: dict[int, list] = {}
+    for k, x_end in ends:
+        if not left:
+            break
+        got = fill(max(x0, x_end + s))
+        if got:
+            added[k] = got
+    new: list[list[tuple[int, int, int, int]]] = []
+    while left:
+        got = fill(x0)
+        if not got:  # cannot happen: every part fits the usable area in some angle (checked by nest)
+            raise GeometryBug(f"item {left[0][2]}: no room on an empty sheet for its box")
+        new.append(got)
+    return added, new

@@ -33,6 +33,7 @@ from __future__ import annotations
 
 import math
 import random
+import time
 from collections.abc import Callable, Sequence
 
 import numpy as np
@@ -99,12 +100,14 @@ def nest(items: Sequence[NestItem], *, sheet_mm: tuple[float, float] | None = No
     the :data:`SEARCHES` improvement searches of each stage side by side; the
     layout does not depend on it.
     """
+    t_start = time.monotonic()
     _validate_items(items)
     if (sheet_mm is None) == (strip_width_mm is None):
         raise SheetgenError("give either a sheet size or a strip width, not both and not neither")
     margin = _check_number("margin", margin_mm, 0.0)
     spacing = _check_number("spacing", spacing_mm, 0.0)
     limit = _check_number("time limit", time_limit_s, 0.0)
+    clock = Clock(limit, progress, t_start)  # the ceiling covers the whole call, preparation included
     work_effort = limit * EFFORT_PER_SECOND if effort is None else _check_number("effort", effort, 0.0)
     check_ceiling(items, memory_limit_bytes)
     if sheet_mm is not None:
@@ -150,7 +153,6 @@ def nest(items: Sequence[NestItem], *, sheet_mm: tuple[float, float] | None = No
     work = Work()
     lib.work = work
     budget = int(work_effort * EFFORT_UNITS)
-    clock = Clock(limit, progress)
     counts = [int(it.qty) for it in items]
 
     if strip:
@@ -240,15 +242,18 @@ def _empty_last(lib, sheets, usable, work, stop):
     return [list(s) + added.get(k, []) for k, s in enumerate(sheets[:-1])]
 
 
+MOVE_BLOCK = 256   # placed parts moved per shapely call when building the result
+
+
 def _result(items, lib: ShapeLibrary, sheets, unplaced_items, sheet_size, margin, spacing, strip_length,
             area_lower: int, lower: int, stopped_by: str, work_units: int) -> NestResult:
     """The NestResult of sheets given as lists of (item, shape id, px, py);
     copies are numbered in placement order, then the unplaced ones."""
-    per_sheet: list[list[PlacedPart]] = []
     turned_cache: dict[tuple[int, float], Polygon] = {}
     copies = [0] * len(items)
-    for sheet in sheets:
-        out = []
+    records = []   # (sheet, item, copy, x, y, angle) in placement order
+    turned_list = []
+    for k, sheet in enumerate(sheets):
         for item, sid, px, py in sheet:
             sh = lib.shapes[sid]
             x, y = px / lib.scale - sh.offset[0], py / lib.scale - sh.offset[1]
@@ -256,11 +261,21 @@ def _result(items, lib: ShapeLibrary, sheets, unplaced_items, sheet_size, margin
             turned = turned_cache.get(tk)
             if turned is None:
                 turned = turned_cache[tk] = rotate_ccw(items[item].polygon, sh.angle_deg)
-            offset = np.array([x, y])
-            poly = shapely.transform(turned, lambda c: c + offset)
-            out.append(PlacedPart(item, copies[item], float(x), float(y), sh.angle_deg, poly))
+            records.append((k, item, copies[item], x, y, sh.angle_deg))
+            turned_list.append(turned)
             copies[item] += 1
-        per_sheet.append(out)
+    # parts moved a block at a time (the same sums as one call per part, so the same coordinates;
+    # blocks keep the coordinate arrays small)
+    moved: list = []
+    for b0 in range(0, len(records), MOVE_BLOCK):
+        geoms = np.empty(len(turned_list[b0:b0 + MOVE_BLOCK]), dtype=object)
+        geoms[:] = turned_list[b0:b0 + MOVE_BLOCK]
+        shift = np.repeat(np.array([(r[3], r[4]) for r in records[b0:b0 + MOVE_BLOCK]], dtype=float),
+                          shapely.get_num_coordinates(geoms), axis=0)
+        moved.extend(shapely.transform(geoms, lambda c: c + shift))
+    per_sheet: list[list[PlacedPart]] = [[] for _ in sheets]
+    for (k, item, copy, x, y, angle), poly in zip(records, moved):
+        per_sheet[k].append(PlacedPart(item, copy, float(x), float(y), angle, poly))
     unplaced = []
     for item in unplaced_items:
         unplaced.append((item, copies[item]))

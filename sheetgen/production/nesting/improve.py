@@ -135,13 +135,18 @@ def improve(lib, mode, part_items, usable, lower, first: Decoded, stage: Budget,
             found = list(pool.map(_search_task, tasks))
     else:
         found = [_search_task(t) for t in tasks]
-    for *_, units, hit, fired in found:
+    if any(f is None for f in found):  # a search cut by the ceiling before its start was rebuilt
+        clock.fired = True
+    done = [(k, f) for k, f in enumerate(found) if f is not None]
+    if not done:
+        return fallback
+    for _k, (*_, units, hit, fired) in done:
         stage.hit = stage.hit or hit
         clock.fired = clock.fired or fired
-    stage.work.add(max(f[4] for f in found))  # the budget is per search: charge the longest
+    stage.work.add(max(f[4] for _k, f in done))  # the budget is per search: charge the longest
     stage.spent()
-    j = min(range(len(found)), key=lambda k: (found[k][0], k))
-    key, placements, unplaced, n_sheets = found[j][:4]
+    _j, best = min(done, key=lambda kf: (kf[1][0], kf[0]))
+    key, placements, unplaced, n_sheets = best[:4]
     return placements, unplaced, n_sheets
 
 
@@ -149,21 +154,37 @@ def _quiet(_msg: str):
     return lambda: None
 
 
+class _Cut(Exception):
+    """The ceiling fired while a search rebuilt its start."""
+
+
 def _search_task(args):
-    """One improvement search (module-level so that a process pool can run it)."""
+    """One improvement search (module-level so that a process pool can run it);
+    None when the wall-clock ceiling fired before it had rebuilt its start (the
+    caller keeps the first layout)."""
     frozen, mode, part_items, usable, lower, plan, rule, units, deadline, seed, compact = args
+    clock = Deadline(deadline)
+    if clock.stop():
+        return None
     lib = pickle.loads(frozen)
     work = Work()
     lib.work = work
     stage = Budget(work, units)
-    clock = Deadline(deadline)
     rng = random.Random(seed)
+
+    def check(_fraction: float) -> None:
+        if clock.stop():
+            raise _Cut
+
+    try:
+        start = Decoder(lib, part_items, usable, 1 if mode == "strip" else len(part_items), work).decode(
+            plan, rule, progress=check)
+    except _Cut:
+        return None
     if mode == "strip":
-        start = Decoder(lib, part_items, usable, 1, work).decode(plan, rule)
         best = _shrink(lib, part_items, usable, start, stage, rng, clock, _quiet)
         key: tuple = (len(best.final.unplaced), used_x(best))
     else:
-        start = Decoder(lib, part_items, usable, len(part_items), work).decode(plan, rule)
         best, key = _sheet_improve(lib, part_items, usable, lower, start, stage, rng, clock, compact)
     stage.spent()
     st = best.final

@@ -109,6 +109,8 @@ class ShapeLibrary:
         self._outline = {c: clearance_outline(self.shapes[i].polygon, self.spacing / 2)
                          for c, i in self._canon_rep.items()}
         self._nfp: dict[tuple[int, int], tuple] = {}
+        # clearance outline bounds in grid units, for a no-fit polygon's box before computing it
+        self._obox = {c: tuple(v * self.scale for v in o.bounds) for c, o in self._outline.items()}
         self._hulls: list[float] | None = None
         self.nfp_computed = 0
         self.work: Work | None = None  # charged for the no-fit polygons computed
@@ -118,6 +120,21 @@ class ShapeLibrary:
         if self._hulls is None:
             self._hulls = [self.shapes[ids[0]].polygon.convex_hull.area for ids in self.item_shapes]
         return self._hulls
+
+    def nfp_box(self, fixed: int, moving: int) -> tuple[int, int, int, int]:
+        """A box in grid units that contains the no-fit polygon of two shape ids
+        (the exact one when it is cached, otherwise the bounds of fixed (+)
+        (-moving) from the clearance outlines' boxes, two grid units wider):
+        a placed part whose box misses a region cuts nothing from it, and its
+        no-fit polygon need not be computed."""
+        key = (self.shapes[fixed].canon, self.shapes[moving].canon)
+        hit = self._nfp.get(key)
+        if hit is not None:
+            return hit[2]
+        ax0, ay0, ax1, ay1 = self._obox[key[0]]
+        bx0, by0, bx1, by1 = self._obox[key[1]]
+        return (math.floor(ax0 - bx1) - 2, math.floor(ay0 - by1) - 2, math.ceil(ax1 - bx0) + 2,
+                math.ceil(ay1 - by0) + 2)
 
     def nfp(self, fixed: int, moving: int):
         """The shrunk no-fit polygon of two shape ids, in grid units: (all vertices
@@ -235,6 +252,9 @@ class Sheet:
             cut: ClipperPaths = []
             nverts = 0
             for sid, px, py in self.placed[applied:]:
+                nb = self.lib.nfp_box(sid, shape_id)
+                if nb[0] + px >= rx1 or nb[2] + px <= rx0 or nb[1] + py >= ry1 or nb[3] + py <= ry0:
+                    continue  # the box holds the no-fit polygon: nothing to cut, nothing to compute
                 flat, cuts, nb = self.lib.nfp(sid, shape_id)
                 if nb[0] + px >= rx1 or nb[2] + px <= rx0 or nb[1] + py >= ry1 or nb[3] + py <= ry0:
                     continue
