@@ -325,12 +325,25 @@ def axle_radius_mm(solids: dict[str, Solid], axis: Axis) -> float:
 # -- 5. the counterweight carried ---------------------------------------------------
 
 
+def kit_to_file(axis: Axis) -> np.ndarray:
+    """The rotation from the kit frame of the params file (x along the axle, origin on it) to the
+    STEP file's frame: the least rotation taking x onto the axle's direction (identity for a level
+    axle; a polar kit's file stands it at its tilt)."""
+    x = np.array([1.0, 0.0, 0.0])
+    d = axis.direction if axis.direction @ x >= 0 else -axis.direction
+    v, c = np.cross(x, d), float(x @ d)
+    k = np.array([[0.0, -v[2], v[1]], [v[2], 0.0, -v[0]], [-v[1], v[0], 0.0]])
+    return np.eye(3) + k + k @ k / (1.0 + c)  # Rodrigues, for c > -1
+
+
 def unbalance_Nm(solids: dict[str, Solid], axis: Axis, sheet_material: str, axle_material: str,
-                 panel_mass_kg: float, leave_out: tuple[str, ...] = ()) -> tuple[float, float]:
+                 panel_mass_kg: float, leave_out: tuple[str, ...] = (),
+                 point_masses: tuple[tuple[float, tuple[float, float, float]], ...] = ()) -> tuple[float, float]:
     """(static unbalance of the turning group about the axis, N*m, with the axis level and the CG
     at its worst; the CG's distance from the axis, mm). Masses: the solids' volumes times the
     densities above (parts of the sheet material; the axle of its rod material; the counterweight
-    steel); the panel's mass as given, at its solid's centre."""
+    steel); the panel's mass as given, at its solid's centre; ``point_masses`` (kg, position in the
+    params file's kit frame: the file's [[rotating_mass]] items, which have no solid)."""
     moment = np.zeros(3)
     total = 0.0
     for s in solids.values():
@@ -346,6 +359,10 @@ def unbalance_Nm(solids: dict[str, Solid], axis: Axis, sheet_material: str, axle
         else:
             m = vol * 1e-9 * DENSITY_KG_M3[sheet_material]
         moment += m * axis.perpendicular(c)
+        total += m
+    rot = kit_to_file(axis)
+    for m, pos in point_masses:
+        moment += m * axis.perpendicular(rot @ np.asarray(pos, dtype=float))
         total += m
     r = float(np.linalg.norm(moment))  # kg*mm
     return r * 1e-3 * G_M_S2, r / total if total else 0.0

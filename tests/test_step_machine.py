@@ -46,6 +46,8 @@ class Kit:
         self.axle_material = p["axle"]["material"]
         self.panel_mass_kg = float(p["panel"]["mass"])
         self.travel_limit_deg = float(p["site"]["travel_limit"])
+        self.point_masses = tuple((float(r["mass_kg"]), tuple(float(v) for v in r["position_mm"]))
+                                  for r in p.get("rotating_mass", []))
         self.axis = M.axle_axis(self.solids)
 
 
@@ -123,8 +125,8 @@ def test_the_wheel_and_the_ribs_are_keyed_to_the_axle(kit):
 
 def test_the_counterweight_balances_the_frame(kit):
     args = (kit.solids, kit.axis, kit.sheet_material, kit.axle_material, kit.panel_mass_kg)
-    bare_Nm, bare_off_mm = M.unbalance_Nm(*args, leave_out=("counterweight",))
-    residual_Nm, _ = M.unbalance_Nm(*args)
+    bare_Nm, bare_off_mm = M.unbalance_Nm(*args, leave_out=("counterweight",), point_masses=kit.point_masses)
+    residual_Nm, _ = M.unbalance_Nm(*args, point_masses=kit.point_masses)
     if bare_off_mm < CW_THRESHOLD_MM:
         pytest.skip(f"bare frame's CG {bare_off_mm:.2f} mm off the axle: no counterweight needed")
     cw = kit.solids.get("counterweight")
@@ -139,6 +141,6 @@ def test_the_unbalance_agrees_with_the_kits_own_figures(kit):
 
     figures = dict(build_kit(load_spec(kit.params, [])).figures)
     args = (kit.solids, kit.axis, kit.sheet_material, kit.axle_material, kit.panel_mass_kg)
-    bare_Nm, _ = M.unbalance_Nm(*args, leave_out=("counterweight",))
+    bare_Nm, _ = M.unbalance_Nm(*args, leave_out=("counterweight",), point_masses=kit.point_masses)
     ours_gmm = bare_Nm / M.G_M_S2 * 1e6
     assert ours_gmm == pytest.approx(figures["bare_unbalance_gmm"], rel=0.05, abs=1.0)
