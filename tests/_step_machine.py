@@ -325,6 +325,16 @@ def axle_radius_mm(solids: dict[str, Solid], axis: Axis) -> float:
 # -- 5. the counterweight carried ---------------------------------------------------
 
 
+def counterweight_hardware(solids: dict[str, Solid]) -> tuple[str, ...]:
+    """The counterweight, its bracket and the fasteners that touch either (what the bare frame lacks)."""
+    cw = [s for n, s in solids.items() if n.startswith("counterweight")]
+    out = [s.name for s in cw]
+    for n, s in solids.items():
+        if n.startswith(("bolt#", "nut#")) and any(solid_distance(s.shape, c.shape) < TOUCH_MM for c in cw):
+            out.append(n)
+    return tuple(out)
+
+
 def kit_to_file(axis: Axis) -> np.ndarray:
     """The rotation from the kit frame of the params file (x along the axle, origin on it) to the
     STEP file's frame: the least rotation taking x onto the axle's direction (identity for a level
@@ -341,20 +351,20 @@ def unbalance_Nm(solids: dict[str, Solid], axis: Axis, sheet_material: str, axle
                  point_masses: tuple[tuple[float, tuple[float, float, float]], ...] = ()) -> tuple[float, float]:
     """(static unbalance of the turning group about the axis, N*m, with the axis level and the CG
     at its worst; the CG's distance from the axis, mm). Masses: the solids' volumes times the
-    densities above (parts of the sheet material; the axle of its rod material; the counterweight
-    steel); the panel's mass as given, at its solid's centre; ``point_masses`` (kg, position in the
+    densities above (parts of the sheet material; the axle of its rod material; the counterweight,
+    the bolts and the nuts steel); the panel's mass as given, at its solid's centre; ``point_masses`` (kg, position in the
     params file's kit frame: the file's [[rotating_mass]] items, which have no solid)."""
     moment = np.zeros(3)
     total = 0.0
     for s in solids.values():
-        if s.group != "rotating" or any(s.name.startswith(p) for p in leave_out):
+        if s.group != "rotating" or s.name in leave_out:
             continue
         vol, c = volume_centre(s.shape)
         if s.name == "panel":
             m = panel_mass_kg
         elif s.name == "axle":
             m = vol * 1e-9 * DENSITY_KG_M3[axle_material]
-        elif s.name.startswith("counterweight") and "bracket" not in s.name:
+        elif (s.name.startswith("counterweight") and "bracket" not in s.name) or s.name.startswith(("bolt#", "nut#")):
             m = vol * 1e-9 * STEEL_KG_M3
         else:
             m = vol * 1e-9 * DENSITY_KG_M3[sheet_material]

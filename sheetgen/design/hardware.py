@@ -202,7 +202,7 @@ def hole_stacks(kit: Kit) -> tuple[HoleStack, ...]:
     lowest = _lowest_z_mm(kit)
     motor = _component(kit, "motor")
     out = []
-    for (normal, _), spans in sorted(lines.items()):
+    for (normal, foot_key), spans in sorted(lines.items()):
         spans.sort()
         groups: list[list[tuple[float, float, float, str]]] = []
         for span in spans:
@@ -213,13 +213,14 @@ def hole_stacks(kit: Kit) -> tuple[HoleStack, ...]:
         a = np.asarray(normal)
         for g in groups:
             s_lo, s_hi = g[0][0], max(s[1] for s in g)
-            out.append(_classify(kit, a, s_lo, s_hi, g, lowest, motor))
+            near = np.asarray(foot_key, dtype=float) * TOL_MM  # the line's foot, to TOL_MM / 2
+            out.append(_classify(kit, a, s_lo, s_hi, g, lowest, motor, near))
     return tuple(sorted(out, key=lambda h: (h.kind, h.start_mm)))
 
 
-def _classify(kit, a, s_lo, s_hi, group, lowest, motor) -> HoleStack:
+def _classify(kit, a, s_lo, s_hi, group, lowest, motor, near=None) -> HoleStack:
     part_names = tuple(s[3] for s in group)
-    foot = _line_foot(kit, a, group)
+    foot = _line_foot(kit, a, group, near)
     start = foot + s_lo * a
     length = s_hi - s_lo
     d = min(s[2] for s in group)
@@ -239,8 +240,10 @@ def _classify(kit, a, s_lo, s_hi, group, lowest, motor) -> HoleStack:
     return HoleStack(vec3(a), vec3(start), length, d, part_names, kind)
 
 
-def _line_foot(kit: Kit, a: np.ndarray, group) -> np.ndarray:
-    """The point of the stack's line nearest the kit origin (from the first hole's part)."""
+def _line_foot(kit: Kit, a: np.ndarray, group, near: np.ndarray | None = None) -> np.ndarray:
+    """The point of the stack's line nearest the kit origin (from the first hole's part); ``near``:
+    the line's foot as its key rounds it, which tells apart equal holes of one part on parallel lines
+    (the four frame bolt holes of the tray)."""
     name = group[0][3]
     part = kit.part(name)
     for pl in part.placements:
@@ -253,8 +256,11 @@ def _line_foot(kit: Kit, a: np.ndarray, group) -> np.ndarray:
             p0 = pl.apply(np.array([[c.x_mm, c.y_mm, 0.0]]))[0]
             s0 = float(p0 @ normal)
             s1 = s0 + part.thickness_mm * float(pl.matrix[:, 2] @ normal)
+            foot = p0 - float(p0 @ a) * a
+            if near is not None and float(np.linalg.norm(foot - near)) > TOL_MM:
+                continue
             if abs(min(s0, s1) - group[0][0]) < 1e-9 and abs(2 * c.radius_mm - group[0][2]) < 1e-9:
-                return p0 - float(p0 @ a) * a
+                return foot
     raise AssertionError("a hole of the stack is not in its part")  # pragma: no cover
 
 
