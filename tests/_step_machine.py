@@ -117,8 +117,15 @@ def common_mm3(a, b) -> float:
 
 
 def bbox(shape) -> tuple[np.ndarray, np.ndarray]:
-    bb = shape.BoundingBox()
-    return np.array([bb.xmin, bb.ymin, bb.zmin]), np.array([bb.xmax, bb.ymax, bb.zmax])
+    """An axis-aligned box round the shape (OpenCascade's plain box from its geometry, without
+    triangulation: it may be a little large, never small; a prefilter only)."""
+    from OCP.Bnd import Bnd_Box
+    from OCP.BRepBndLib import BRepBndLib
+
+    box = Bnd_Box()
+    BRepBndLib.Add_s(shape.wrapped, box, False)
+    x0, y0, z0, x1, y1, z1 = box.Get()
+    return np.array([x0, y0, z0]), np.array([x1, y1, z1])
 
 
 def bbox_gap(a, b) -> float:
@@ -280,7 +287,7 @@ def overlaps(solids: dict[str, Solid], axis: Axis, angle_deg: float,
     return out
 
 
-def first_overlap_deg(solids, axis: Axis, inside_deg: float, past_deg: float, tol_deg: float = 0.01) -> float:
+def first_overlap_deg(solids, axis: Axis, inside_deg: float, past_deg: float, tol_deg: float = 0.02) -> float:
     """Bisection between an angle without overlap and one with: where the first overlap appears."""
     lo, hi = inside_deg, past_deg
     while abs(hi - lo) > tol_deg:

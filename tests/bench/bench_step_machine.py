@@ -6,7 +6,7 @@ back (sheetgen.model3d.stepread); then, from the file's solids and the params fi
 (tests/_step_machine.py, OpenCascade measures): the panel's gap to the nearest part over
 and under its faces; the motor's (body and shaft) least clearance to a solid that is not a
 holder or the pinion, through the travel, and to what; the angles where the turning group
-first shares volume with a fixed solid each way (bisection to 0.01 deg); the keyed bores'
+first shares volume with a fixed solid each way (bisection to 0.02 deg); the keyed bores'
 least and largest wall distance from the axle axis; the bare and residual unbalance (N*m,
 axle level, CG at its worst); and the seconds each took."""
 
