@@ -148,3 +148,21 @@ def test_the_unbalance_agrees_with_the_kits_own_figures(kit):
                                 point_masses=kit.point_masses)
     ours_gmm = bare_Nm / M.G_M_S2 * 1e6
     assert ours_gmm == pytest.approx(figures["bare_unbalance_gmm"], rel=0.05, abs=1.0)
+
+
+def test_the_bolts_are_drawn_in_their_holes_on_the_faces_they_clamp(kit):
+    """The frame bolts and the counterweight bar's screw are solids of the file (issue 13, item 7):
+    each bolt and nut turns with the frame it clamps, touches a plate (head or nut on its face)
+    and shares volume with nothing (the shank clears its hole, the nut rings the shank)."""
+    fasteners = {n: s for n, s in kit.solids.items() if n.startswith(("bolt#", "nut#"))}
+    assert sum(n.startswith("bolt#") for n in fasteners) >= 4, sorted(fasteners)
+    for n, f in fasteners.items():
+        assert f.group == "rotating", n
+        box = M.bbox(f.shape)
+        near = [s for m, s in kit.solids.items() if m != n and M.bbox_gap(box, M.bbox(s.shape)) == 0.0]
+        for s in near:
+            v = M.common_mm3(f.shape, s.shape)
+            assert v <= M.OVERLAP_TOL_MM3, f"{n} shares {v:.3f} mm3 with {s.name}"
+        plates = [s.name for s in near if not s.name.startswith(("bolt#", "nut#"))
+                  and M.solid_distance(f.shape, s.shape) < M.TOUCH_MM]
+        assert plates, f"{n} touches no plate"

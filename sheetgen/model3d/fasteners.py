@@ -1,8 +1,9 @@
 """Solids of the fasteners that matter for clearance: the bolts that clamp the frame layers
 (and their nuts), and the screw that holds the counterweight bar; pure (no cadquery).
 
-Each stack of holes that sheetgen.design.hardware classifies as a through bolt ("bolt") or
-as a screw into the counterweight bar's tapped end ("tapped") gets
+Each stack of holes through parts of the turning frame that sheetgen.design.hardware
+classifies as a through bolt ("bolt") or as a screw into the counterweight bar's tapped end
+("tapped") gets
 
 * ``bolt#N``: a plain washer on the face at the stack's high end along its axis (the
   axis as hole_stacks gives it: first non-zero component positive, so a vertical stack's
@@ -84,12 +85,15 @@ def fastener_bodies(kit: Kit) -> tuple:
     from sheetgen.model3d.bodies import Body
 
     out = []
-    stacks = [s for s in hole_stacks(kit) if s.kind in FASTENER_KINDS]
+    # the ones that matter for clearance: those that turn with the frame (the frame bolts, the bar's
+    # screw); bolts through fixed plates (a polar kit's base and ground plate) stay undrawn
+    stacks = [s for s in hole_stacks(kit) if s.kind in FASTENER_KINDS and _rides_turning(kit, s)]
     bar = next((c for c in kit.components if c.name == "counterweight"), None)
     for n, s in enumerate(stacks, start=1):
         where = "holes in " + " + ".join(dict.fromkeys(s.parts))
         size = metric_size(s.diameter_mm, where)
         a = np.asarray(s.axis, dtype=float)
+        a = a / np.linalg.norm(a)  # the stack's axis is rounded to 6 decimals (a tilted plate's)
         lo, hi = np.asarray(s.start_mm, dtype=float), np.asarray(s.end_mm, dtype=float)
         turning = _rides_turning(kit, s)
         h, d2 = ISO_7089_WASHER_MM[size]
