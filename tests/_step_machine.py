@@ -257,6 +257,29 @@ def motor_clearance(solids: dict[str, Solid], axis: Axis, angles_deg, exempt) ->
     return best
 
 
+def turning_clearance(solids: dict[str, Solid], axis: Axis, angles_deg, subject) -> tuple[float, str, str, float]:
+    """(least distance, turning solid, fixed solid, frame angle) from the turning solids chosen by
+    ``subject(name)`` to every fixed solid, at each of ``angles_deg`` (branch and bound on boxes)."""
+    fixed = [(s, bbox(s.shape)) for s in solids.values() if s.group == "fixed"]
+    cands = []
+    for r in solids.values():
+        if r.group != "rotating" or not subject(r.name):
+            continue
+        for a in angles_deg:
+            t = turned(r.shape, axis, float(a))
+            tb = bbox(t)
+            cands += [(bbox_gap(tb, fb), r.name, f.name, float(a), t, f.shape) for f, fb in fixed]
+    cands.sort(key=lambda c: (c[0], c[1], c[2], c[3]))
+    best = (math.inf, "", "", 0.0)
+    for gap, rn, fn, a, t, f in cands:
+        if gap >= best[0]:
+            break
+        d = solid_distance(t, f)
+        if d < best[0]:
+            best = (d, rn, fn, a)
+    return best
+
+
 # -- 3. the end stops -----------------------------------------------------------
 
 

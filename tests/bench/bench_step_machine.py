@@ -5,7 +5,8 @@ For the demo and each params/*.toml: the STEP file is written by sheetgen's writ
 back (sheetgen.model3d.stepread); then, from the file's solids and the params file only
 (tests/_step_machine.py, OpenCascade measures): the panel's gap to the nearest part over
 and under its faces; the motor's (body and shaft) least clearance to a solid that is not a
-holder or the pinion, through the travel, and to what; the angles where the turning group
+holder or the pinion, through the travel, and to what; the bolts' and nuts' least clearance to
+the fixed solids through the travel; the angles where the turning group
 first shares volume with a fixed solid each way (bisection to 0.02 deg); the keyed bores'
 least and largest wall distance from the axle axis; the bare and residual unbalance (N*m,
 axle level, CG at its worst); and the seconds each took."""
@@ -42,6 +43,7 @@ def run(params: str, tmp: Path) -> None:
     (up, over), (down, under) = M.panel_gaps(solids)
     angles = sorted(set(np.linspace(-lim, lim, 13).round(6).tolist()))
     d, other, at = M.motor_clearance(solids, axis, angles, lambda n: "motor" in n or n.startswith("pinion"))
+    fd, fr, ff, fa = M.turning_clearance(solids, axis, angles, lambda n: n.startswith(("bolt#", "nut#")))
     t_near = time.perf_counter() - t0
     t0 = time.perf_counter()
     plus = M.first_overlap_deg(solids, axis, lim - 1.0, lim + 3.0)
@@ -58,6 +60,8 @@ def run(params: str, tmp: Path) -> None:
           f"panel+motor {t_near:.1f} s, stops {t_stop:.1f} s")
     print(f"  panel gap above {up:.4f} mm ({over}), below {down:.4f} mm ({under})")
     print(f"  motor: least clearance to a non-holder {d:.3f} mm, to {other} (frame at {at:g} deg)")
+    print(f"  fasteners: {sum(n.startswith('bolt#') for n in solids)} bolts, {sum(n.startswith('nut#') for n in solids)}"
+          f" nuts; least clearance to a fixed solid through the travel {fd:.3f} mm ({fr} to {ff} at {fa:g} deg)")
     print(f"  stops: travel limit +-{lim:g} deg; first overlap at {plus:+.2f} / {minus:+.2f} deg, "
           f"with {', '.join(met) or 'nothing'}")
     walls = sorted({(round(a, 3), round(b, 3)) for a, b in bores.values()})
