@@ -112,7 +112,7 @@ def test_demo_bolts_hold_their_stack_and_come_from_the_series(demo_kit, demo_spe
     hardware = hardware_items(demo_kit, demo_spec)
     bolts = _bolt_checks(demo_kit, hardware)
     # the demo clamps tray, one rim layer and bezel: 9 mm of 3 mm MDF at four corners
-    # four frame bolts through the tray, rim(s) and bezel (the bar's screw is the fifth)
+    # four frame bolts through the tray, rim(s) and bezel (the bar's screw goes into its tapped end)
     assert sum(b.qty_per_kit for b in bolts if "tray" in b.parts) == 4
     nuts = sum(h.qty_per_kit for h in hardware if h.item == "nut")
     assert nuts == sum(b.qty_per_kit for b in bolts)
@@ -136,7 +136,7 @@ def test_bolts_follow_any_stack(t, panel_t, bolt):
         return
     _refs.kept()
     bolts = _bolt_checks(kit, hardware_items(kit, spec))
-    # four frame bolts through the tray, rim(s) and bezel (the bar's screw is the fifth)
+    # four frame bolts through the tray, rim(s) and bezel (the bar's screw goes into its tapped end)
     assert sum(b.qty_per_kit for b in bolts if "tray" in b.parts) == 4
 
 
@@ -196,15 +196,17 @@ def test_fastener_counts_match_the_holes_in_the_part_dxfs(demo_build_3, demo_spe
             assert d >= rod_min, f"a {d} mm hole has no fastener"
     for s in by_size:
         assert any(abs(s - d) < 2e-3 for d in holes), s
-    # the demo: 4 frame bolts and the counterweight bar's screw, 4 base anchors, no motor screws
-    # (the motor's box of plates clamps its body); a nut per bolt; a washer each side of a bolt
-    # and under every screw head
+    # the demo: 4 frame bolts, the counterweight bar's screw into its tapped end (no nut), 4 base
+    # anchors, no motor screws (the motor's box of plates clamps its body); a nut per bolt; a washer
+    # each side of a bolt and under every screw head
     count = {h["item"]: 0 for h in summary["hardware"]}
     for h in summary["hardware"]:
         count[h["item"]] += h["qty_per_kit"]
-    assert (count["bolt"], count["anchor screw"], count.get("motor screw", 0)) == (5, 4, 0)
+    assert (count["bolt"], count["counterweight screw"], count["anchor screw"],
+            count.get("motor screw", 0)) == (4, 1, 4, 0)
     assert count["nut"] == count["bolt"]
-    assert count["washer"] == 2 * count["bolt"] + count["anchor screw"] + count.get("motor screw", 0)
+    assert count["washer"] == (2 * count["bolt"] + count["counterweight screw"] + count["anchor screw"]
+                               + count.get("motor screw", 0))
     for h in summary["hardware"]:
         assert h["qty_total"] == h["qty_per_kit"] * summary["kits"]
 

@@ -9,6 +9,8 @@ whose plates touch face to face are one *stack*, and a stack is
 - a base anchor when it is vertical and starts at the kit's underside (a screw
   into the user's surface);
 - a motor screw when it ends on the face of the motor body;
+- a screw into a tapped end (no nut) when it ends on the end face of the counterweight
+  bar, on the bar's axis (the bar is drilled and tapped there);
 - otherwise a bolt with two washers and a nut.
 
 Each fastener's size is the largest metric size whose ISO 273 clearance hole
@@ -63,6 +65,9 @@ THREAD_ALLOWANCE_PITCHES = 2  # thread showing beyond the nut: at least two pitc
 WASHERS_PER_BOLT = 2  # under the head and under the nut: sheet wood is soft (common practice)
 WOOD_SCREW_EMBED_D = 6  # a wood screw reaches about six diameters into the surface (common practice, from memory)
 MOTOR_THREAD_ENGAGEMENT_D = 1.5  # screw into a motor's threaded holes by 1.5 diameters (common practice)
+# A screw into a tapped hole in steel engages about 1 to 1.5 diameters (common practice, from memory);
+# the counterweight bar's tapped end takes 1.5 diameters, or the bar's length if it is shorter.
+TAPPED_STEEL_ENGAGEMENT_D = 1.5
 
 AXLE_MATERIAL_TEXT = {"steel": "steel rod (bright drawn)", "aluminium": "aluminium rod", "beech": "beech dowel"}
 GLUE_TEXT = {"mdf": "PVA wood glue", "birch_plywood": "PVA wood glue",
@@ -125,7 +130,7 @@ class HoleStack:
     length_mm: float
     diameter_mm: float
     parts: tuple[str, ...]
-    kind: str  # "axle", "shaft", "anchor", "motor screw", "bolt"
+    kind: str  # "axle", "shaft", "anchor", "motor screw", "tapped", "bolt"
 
     @property
     def end_mm(self) -> tuple[float, float, float]:
@@ -197,7 +202,7 @@ def hole_stacks(kit: Kit) -> tuple[HoleStack, ...]:
     lowest = _lowest_z_mm(kit)
     motor = _component(kit, "motor")
     out = []
-    for (normal, _), spans in sorted(lines.items()):
+    for (normal, foot_key), spans in sorted(lines.items()):
         spans.sort()
         groups: list[list[tuple[float, float, float, str]]] = []
         for span in spans:
@@ -208,13 +213,14 @@ def hole_stacks(kit: Kit) -> tuple[HoleStack, ...]:
         a = np.asarray(normal)
         for g in groups:
             s_lo, s_hi = g[0][0], max(s[1] for s in g)
-            out.append(_classify(kit, a, s_lo, s_hi, g, lowest, motor))
+            near = np.asarray(foot_key, dtype=float) * TOL_MM  # the line's foot, to TOL_MM / 2
+            out.append(_classify(kit, a, s_lo, s_hi, g, lowest, motor, near))
     return tuple(sorted(out, key=lambda h: (h.kind, h.start_mm)))
 
 
-def _classify(kit, a, s_lo, s_hi, group, lowest, motor) -> HoleStack:
+def _classify(kit, a, s_lo, s_hi, group, lowest, motor, near=None) -> HoleStack:
     part_names = tuple(s[3] for s in group)
-    foot = _line_foot(kit, a, group)
+    foot = _line_foot(kit, a, group, near)
     start = foot + s_lo * a
     length = s_hi - s_lo
     d = min(s[2] for s in group)
@@ -229,26 +235,56 @@ def _classify(kit, a, s_lo, s_hi, group, lowest, motor) -> HoleStack:
         kind = "anchor"
     elif motor is not None and along_x and _on_motor_face(motor, foot, s_lo, s_hi):
         kind = "motor screw"
+    elif along_x and _on_bar_end(_component(kit, "counterweight"), foot, s_lo, s_hi):
+        kind = "tapped"
     return HoleStack(vec3(a), vec3(start), length, d, part_names, kind)
 
 
-def _line_foot(kit: Kit, a: np.ndarray, group) -> np.ndarray:
-    """The point of the stack's line nearest the kit origin (from the first hole's part)."""
+def _line_foot(kit: Kit, a: np.ndarray, group, near: np.ndarray | None = None) -> np.ndarray:
+    """The point of the stack's line nearest the kit origin (from the first hole's part); ``near``:
+    the line's foot as its key rounds it, which tells apart equal holes of one part on parallel lines
+    (the four frame bolt holes of the tray)."""
     name = group[0][3]
     part = kit.part(name)
     for pl in part.placements:
         normal = _canonical(pl.matrix[:, 2])
-        # the stack's key holds the normal rounded (a tilted plate's normal is not exact): match it
-        # the same way, and measure along the unrounded normal as hole_stacks did
-        if tuple(round(float(v), 6) + 0.0 for v in normal) != tuple(float(v) for v in a):
+        # ``a`` is the stack's key, rounded to 6 decimals: a tilted plate's normal (a polar kit's
+        # ground plate) agrees with it only to that; the spans were measured along the plate's own
+        if not np.allclose(normal, a, atol=1e-6):
             continue
         for c in part.circles:
             p0 = pl.apply(np.array([[c.x_mm, c.y_mm, 0.0]]))[0]
             s0 = float(p0 @ normal)
             s1 = s0 + part.thickness_mm * float(pl.matrix[:, 2] @ normal)
+            foot = p0 - float(p0 @ a) * a
+            if near is not None and float(np.linalg.norm(foot - near)) > TOL_MM:
+                continue
             if abs(min(s0, s1) - group[0][0]) < 1e-9 and abs(2 * c.radius_mm - group[0][2]) < 1e-9:
-                return p0 - s0 * normal
+                return foot
     raise AssertionError("a hole of the stack is not in its part")  # pragma: no cover
+
+
+def _on_bar_end(bar: Component | None, foot: np.ndarray, s_lo: float, s_hi: float) -> bool:
+    """Whether a stack along x lies on the counterweight bar's axis and ends on one of its end faces."""
+    if bar is None or bar.shape != "cylinder_x":
+        return False
+    cx, cy, cz = bar.centre_mm
+    length = bar.size_mm[0]
+    on_axis = math.hypot(foot[1] - cy, foot[2] - cz) < TOL_MM
+    ends = (cx - length / 2, cx + length / 2)
+    return on_axis and any(abs(s - e) < TOL_MM for s in (s_lo, s_hi) for e in ends)
+
+
+def tapped_screw_length_mm(stack_mm: float, size: float, bar_length_mm: float) -> tuple[float, float]:
+    """(needed length, ISO 4762 length) of a screw through a stack of ``stack_mm`` into a tapped
+    bar end: the stack, a washer under the head, and TAPPED_STEEL_ENGAGEMENT_D diameters of thread
+    (or the bar's length, if shorter); the series length is the first at least that need which
+    does not bottom in the bar, or the first above the need when none fits between the two."""
+    washer = ISO_7089_WASHER_MM[size][0]
+    need = stack_mm + washer + min(TAPPED_STEEL_ENGAGEMENT_D * size, bar_length_mm)
+    most = stack_mm + washer + bar_length_mm
+    fits = [float(n) for n in ISO_4762_LENGTHS_MM if need - 1e-9 <= n <= most + 1e-9]
+    return need, (min(fits) if fits else next_length(need, ISO_4762_LENGTHS_MM, f"an M{size:g} screw into the bar"))
 
 
 def _on_motor_face(motor: Component, foot: np.ndarray, s_lo: float, s_hi: float) -> bool:
@@ -275,7 +311,8 @@ def hardware_items(kit: Kit, spec) -> tuple[HardwareItem, ...]:
     stacks = hole_stacks(kit)
     items: list[HardwareItem] = []
     items += _axle(kit, spec, stacks)
-    items += _fasteners(stacks)
+    bar = _component(kit, "counterweight")
+    items += _fasteners(stacks, bar.size_mm[0] if bar is not None else 0.0)
     items += _motor(kit, spec)
     items += _panel(spec)
     items += _carried(kit)
@@ -297,10 +334,11 @@ def _axle(kit: Kit, spec, stacks: tuple[HoleStack, ...]) -> list[HardwareItem]:
                          parts=tuple(sorted({n for s in stacks if s.kind == "axle" for n in s.parts})))]
 
 
-def _fasteners(stacks: tuple[HoleStack, ...]) -> list[HardwareItem]:
+def _fasteners(stacks: tuple[HoleStack, ...], bar_length_mm: float = 0.0) -> list[HardwareItem]:
     bolts: dict[tuple[float, float, float], list[HoleStack]] = {}  # (size, length, hole) -> stacks
     anchors: dict[tuple[float, float, float], list[HoleStack]] = {}
     screws: dict[tuple[float, float, float], list[HoleStack]] = {}
+    tapped: dict[tuple[float, float, float], list[HoleStack]] = {}
     washers: dict[float, int] = {}
     nuts: dict[float, int] = {}
     washer_parts: dict[float, set[str]] = {}
@@ -315,6 +353,10 @@ def _fasteners(stacks: tuple[HoleStack, ...]) -> list[HardwareItem]:
             bolts.setdefault((size, length, s.diameter_mm), []).append(s)
             washers[size] = washers.get(size, 0) + WASHERS_PER_BOLT
             nuts[size] = nuts.get(size, 0) + 1
+        elif s.kind == "tapped":
+            _, length = tapped_screw_length_mm(s.length_mm, size, bar_length_mm)
+            tapped.setdefault((size, length, s.diameter_mm), []).append(s)
+            washers[size] = washers.get(size, 0) + 1
         elif s.kind == "anchor":
             need = s.length_mm + w + WOOD_SCREW_EMBED_D * size
             length = next_length(need, WOOD_SCREW_LENGTHS_MM, f"an anchor screw through {where}")
@@ -348,6 +390,12 @@ def _fasteners(stacks: tuple[HoleStack, ...]) -> list[HardwareItem]:
             f"the motor's threaded holes (check their depth on the motor's data sheet)", len(group),
             "prices.motor_screw", length_mm=length, diameter_mm=size, standard="ISO 4762",
             parts=_parts_of(group), holes=len(group[0].parts), hole_mm=hole))
+    for (size, length, hole), group in sorted(tapped.items()):
+        out.append(HardwareItem(
+            "counterweight screw", f"socket head cap screw ISO 4762 {_size_text(size)} x {length:g} with a washer, "
+            f"through the bracket into the counterweight bar's tapped end (no nut)", len(group), "prices.bolt",
+            length_mm=length, diameter_mm=size, standard="ISO 4762", parts=_parts_of(group),
+            holes=len(group[0].parts), hole_mm=hole))
     for size, n in sorted(washers.items()):
         h, od = ISO_7089_WASHER_MM[size]
         out.append(HardwareItem("washer", f"plain washer ISO 7089, size {size:g} ({od:g} mm outside, {h:g} mm thick)", n,

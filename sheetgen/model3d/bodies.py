@@ -44,6 +44,7 @@ class Body:
     pieces: tuple[Prism, ...]
     material: str = ""  # sheet material key (parts)
     mass_kg: float | None = None  # components: as given in the kit
+    clamps: tuple[str, ...] = ()  # fasteners (kind "fastener"): the parts (and nut) whose faces they may touch
 
     def aabb(self) -> tuple[np.ndarray, np.ndarray]:
         pts = np.vstack([p.corners() for p in self.pieces])
@@ -125,6 +126,9 @@ def model_bodies(kit: Kit, spec) -> tuple[Body, ...]:
         pieces = component_prisms(comp, kit, spec.motor.shaft_length_mm, turns)
         if pieces:
             out.append(Body(comp.name, comp.name, "component", comp.rotating, pieces, "", float(comp.mass_kg)))
+    from sheetgen.model3d.fasteners import fastener_bodies
+
+    out += fastener_bodies(kit)  # the bolts and nuts that matter for clearance (model3d/fasteners.py)
     names = [b.name for b in out]
     if len(set(names)) != len(names):
         raise GeometryBug("two solids of the model share a name")

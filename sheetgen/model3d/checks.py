@@ -118,6 +118,8 @@ def _mass(kit: Kit, model: Model) -> tuple[MassCheck, list[SolidInfo]]:
     infos = []
     items = []  # (mass, centre, rotating)
     for b in model.bodies:
+        if b.kind == "fastener":
+            continue  # drawn for clearance; the balance check leaves the hardware's mass out, and so does this
         vol, centre = _volume_and_centre(model.solids[b.name])
         if b.kind == "part":
             mass = vol * 1e-9 * sheet_material(b.material).density_kg_m3

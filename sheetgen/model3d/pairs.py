@@ -31,6 +31,7 @@ from sheetgen.design.kit import MESHING, MOTOR_GAP_MM, MOTOR_HOLDERS
 from sheetgen.design.part import Kit
 from sheetgen.geometry.placement import place
 from sheetgen.geometry.shapes import disc, rect
+from sheetgen.model3d.fasteners import may_touch
 from sheetgen.model3d.bodies import CONTACT_TOL_MM, MOTOR, Body, Prism, _aabb_gap, _x_gap, parallel_distance_mm
 from sheetgen.model3d.solids import Model
 
@@ -209,6 +210,8 @@ def all_pairs(kit: Kit, model: Model, angles: np.ndarray) -> tuple[list[PairGap]
         for fb in fixed[i + 1:]:
             if (fa.source, fb.source) in joined or _aabb_gap(boxes[fa.name], boxes[fb.name]) > CONTACT_TOL_MM:
                 continue
+            if may_touch(fa, fb):
+                continue  # a fastener on the faces it clamps (model3d/fasteners.py)
             d = math.inf
             for ka, pa in enumerate(fa.pieces):
                 for kb, pb in enumerate(fb.pieces):

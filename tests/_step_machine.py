@@ -1,0 +1,408 @@
+"""The kit as a machine, measured on its STEP file alone (shared by tests/test_step_machine.py
+and tests/bench/bench_step_machine.py).
+
+Everything here works on the solids read back from a written STEP file
+(sheetgen.model3d.stepread: names and groups as the file holds them) with
+OpenCascade's own measures: BRepExtrema_DistShapeShape for distances,
+BRepAlgoAPI_Common for shared volume, BRepGProp for volumes, centres and
+principal axes. Nothing here reads the kit's prisms, its layout or its checks.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+
+G_M_S2 = 9.80665  # standard gravity, ISO 80000-3 / CGPM 1901
+OVERLAP_TOL_MM3 = 0.01  # our tolerance: more shared volume than this is two solids in one place
+TOUCH_MM = 0.01  # the brief's "touches": closer than this
+STEEL_KG_M3 = 7850.0  # carbon steel, common practice
+
+# Densities this check uses, kg/m3, by the params file's material keys (sheet.material,
+# axle.material); written here from handbook figures, not taken from sheetgen's own table.
+DENSITY_KG_M3 = {
+    "mdf": 750.0,  # EN 622-5:2009 gives MDF 650 to 800 kg/m3; mid-range, from memory
+    "birch_plywood": 680.0,  # birch plywood about 680 kg/m3, manufacturers' data sheets (from memory)
+    "cast_acrylic": 1190.0,  # cast PMMA 1190 kg/m3, ISO 1183 data sheets (from memory)
+    "steel": STEEL_KG_M3,  # common practice
+    "aluminium": 2700.0,  # common practice (pure aluminium 2700 kg/m3)
+    "beech": 720.0,  # European beech at 12 % moisture about 720 kg/m3 (from memory)
+}
+
+
+@dataclass(frozen=True)
+class Solid:
+    name: str
+    group: str  # "fixed" or "rotating" (the STEP's sub-assembly)
+    shape: Any  # cadquery Shape, placed
+
+
+def read(path: str | Path) -> dict[str, Solid]:
+    from sheetgen.model3d.stepread import read_step_solids
+
+    return {s.name: Solid(s.name, s.group, s.solid()) for s in read_step_solids(path)}
+
+
+def write_step_of(params: str, out: Path, sets: tuple[str, ...] = ()) -> Path:
+    """The kit's STEP file, written by sheetgen's own writer (the file the build puts in
+    model/assembly.step): the only thing the checks read besides the params file."""
+    from sheetgen.design.kit import build_kit
+    from sheetgen.design.spec import load_spec
+    from sheetgen.io.step import write_step
+    from sheetgen.model3d.solids import build_assembly, build_model
+
+    spec = load_spec(params, list(sets))
+    model = build_model(build_kit(spec), spec)
+    return write_step(build_assembly(model, name=Path(params).stem), out)
+
+
+# -- OpenCascade measures ---------------------------------------------------
+
+
+def volume_centre(shape) -> tuple[float, np.ndarray]:
+    from OCP.BRepGProp import BRepGProp
+    from OCP.GProp import GProp_GProps
+
+    props = GProp_GProps()
+    BRepGProp.VolumeProperties_s(shape.wrapped, props)
+    c = props.CentreOfMass()
+    return float(props.Mass()), np.array([c.X(), c.Y(), c.Z()])
+
+
+def distance(a, b) -> float:
+    """OpenCascade's least distance between two shapes (BRepExtrema_DistShapeShape)."""
+    from OCP.BRepExtrema import BRepExtrema_DistShapeShape
+
+    ext = BRepExtrema_DistShapeShape(a.wrapped, b.wrapped)
+    assert ext.IsDone(), "OpenCascade could not measure a distance"
+    return float(ext.Value())
+
+
+def _boundary(shape):
+    import cadquery as cq
+
+    shells = shape.Shells()
+    return cq.Compound.makeCompound(shells) if shells else shape
+
+
+def solid_distance(a, b) -> float:
+    """The least distance between two solids: between their boundaries (OpenCascade skips its
+    slow inside-the-solid test there), 0 when they share volume."""
+    d = distance(_boundary(a), _boundary(b))
+    if d > 0.0 and bbox_gap(bbox(a), bbox(b)) == 0.0 and common_mm3(a, b) > OVERLAP_TOL_MM3:
+        return 0.0
+    return d
+
+
+def common_mm3(a, b) -> float:
+    from OCP.BRepAlgoAPI import BRepAlgoAPI_Common
+    from OCP.TopTools import TopTools_ListOfShape
+
+    op = BRepAlgoAPI_Common()
+    args, tools = TopTools_ListOfShape(), TopTools_ListOfShape()
+    args.Append(a.wrapped)
+    tools.Append(b.wrapped)
+    op.SetArguments(args)
+    op.SetTools(tools)
+    op.SetFuzzyValue(1e-6)  # faces that agree only to rounding (a tilted kit) count as one
+    op.Build()
+    assert op.IsDone(), "OpenCascade could not intersect two solids"
+    import cadquery as cq
+
+    return float(cq.Shape.cast(op.Shape()).Volume())
+
+
+def bbox(shape) -> tuple[np.ndarray, np.ndarray]:
+    """An axis-aligned box round the shape (OpenCascade's plain box from its geometry, without
+    triangulation: it may be a little large, never small; a prefilter only)."""
+    from OCP.Bnd import Bnd_Box
+    from OCP.BRepBndLib import BRepBndLib
+
+    box = Bnd_Box()
+    BRepBndLib.Add_s(shape.wrapped, box, False)
+    x0, y0, z0, x1, y1, z1 = box.Get()
+    return np.array([x0, y0, z0]), np.array([x1, y1, z1])
+
+
+def bbox_gap(a, b) -> float:
+    (alo, ahi), (blo, bhi) = a, b
+    return float(np.linalg.norm(np.maximum(0.0, np.maximum(blo - ahi, alo - bhi))))
+
+
+@dataclass(frozen=True)
+class Axis:
+    point: np.ndarray
+    direction: np.ndarray  # unit
+
+    def perpendicular(self, p: np.ndarray) -> np.ndarray:
+        v = np.asarray(p, dtype=float) - self.point
+        return v - (v @ self.direction) * self.direction
+
+    def distance(self, p: np.ndarray) -> float:
+        return float(np.linalg.norm(self.perpendicular(p)))
+
+
+def axle_axis(solids: dict[str, Solid]) -> Axis:
+    """The axle's axis: the direction of the axle solid's longest principal axis (least moment
+    of inertia), through the centre of the circle its vertices lie on seen along that direction.
+
+    Not through its centre of mass: a rod with a flat (a D profile) has its centre of mass
+    off its axis (0.14 mm on the demo's 6 mm rod), and a frame turned 60 deg about that line
+    would move 0.14 mm off its bearings. The rod's vertices (its round and the ends of its
+    flat's chord) all lie on its circle: a least-squares circle fit (Kasa's algebraic fit)
+    finds the centre."""
+    from OCP.BRepGProp import BRepGProp
+    from OCP.GProp import GProp_GProps
+
+    shape = solids["axle"].shape
+    props = GProp_GProps()
+    BRepGProp.VolumeProperties_s(shape.wrapped, props)
+    pp = props.PrincipalProperties()
+    moments = pp.Moments()
+    axes = [pp.FirstAxisOfInertia(), pp.SecondAxisOfInertia(), pp.ThirdAxisOfInertia()]
+    k = int(np.argmin(moments))
+    d = np.array([axes[k].X(), axes[k].Y(), axes[k].Z()])
+    d = d / np.linalg.norm(d)
+    c = props.CentreOfMass()
+    com = np.array([c.X(), c.Y(), c.Z()])
+    # an orthonormal basis (u, v) of the cross-section
+    u = np.cross(d, [1.0, 0.0, 0.0] if abs(d[0]) < 0.9 else [0.0, 1.0, 0.0])
+    u /= np.linalg.norm(u)
+    v = np.cross(d, u)
+    pts = np.array([vx.toTuple() for vx in shape.Vertices()]) - com
+    x, y = pts @ u, pts @ v
+    # x^2 + y^2 = 2 a x + 2 b y + c, least squares (Kasa 1976)
+    sol, *_ = np.linalg.lstsq(np.column_stack([2 * x, 2 * y, np.ones_like(x)]), x ** 2 + y ** 2, rcond=None)
+    return Axis(com + sol[0] * u + sol[1] * v, d)
+
+
+def turned(shape, axis: Axis, angle_deg: float):
+    import cadquery as cq
+    from OCP.gp import gp_Ax1, gp_Dir, gp_Pnt, gp_Trsf
+
+    if angle_deg == 0.0:
+        return shape
+    trsf = gp_Trsf()
+    trsf.SetRotation(gp_Ax1(gp_Pnt(*map(float, axis.point)), gp_Dir(*map(float, axis.direction))),
+                     math.radians(angle_deg))
+    return shape.moved(cq.Location(trsf))
+
+
+# -- 1. the panel held --------------------------------------------------------
+
+
+def panel_gaps(solids: dict[str, Solid]) -> tuple[tuple[float, str], tuple[float, str]]:
+    """((gap, nearest solid) over the panel's upper face, the same under its lower face).
+
+    The panel's faces are its two largest planar faces; each is shrunk 0.5 mm inside its
+    edges (so the parts that only frame its edges do not count) and measured against
+    every other solid."""
+    import cadquery as cq
+
+    panel = solids["panel"].shape
+    faces = sorted(panel.Faces(), key=lambda f: -f.Area())[:2]
+    _, c = volume_centre(panel)
+    out = []
+    for f in sorted(faces, key=lambda f: -float((np.array(f.Center().toTuple()) - c) @ _up(panel))):
+        wire = f.outerWire().offset2D(-0.5)[0]
+        probe = cq.Face.makeFromWires(wire)
+        best, who = math.inf, ""
+        lo_hi = bbox(probe)
+        for s in solids.values():
+            if s.name == "panel" or bbox_gap(lo_hi, bbox(s.shape)) > 1.0:
+                continue
+            d = distance(probe, _boundary(s.shape))
+            if d < best:
+                best, who = d, s.name
+        out.append((best, who))
+    return out[0], out[1]
+
+
+def _up(panel) -> np.ndarray:
+    """The panel's face normal, turned to have a positive z (its sunny side up at rest)."""
+    f = max(panel.Faces(), key=lambda f: f.Area())
+    n = np.array(f.normalAt().toTuple())
+    return n if n[2] >= 0 else -n
+
+
+# -- 2. the motor clear ---------------------------------------------------------
+
+
+def motor_clearance(solids: dict[str, Solid], axis: Axis, angles_deg, exempt) -> tuple[float, str, float]:
+    """(least distance, to what, at which frame angle) from the motor solid (its body and shaft)
+    to every solid not exempted by ``exempt(name)``; turning solids at each of ``angles_deg``.
+    Branch and bound: candidates in the order of their bounding boxes' gap, which no distance
+    can beat."""
+    motor = solids["motor"].shape
+    mbox = bbox(motor)
+    cands = []
+    for s in solids.values():
+        if s.name == "motor" or exempt(s.name):
+            continue
+        for a in (angles_deg if s.group == "rotating" else [0.0]):
+            t = turned(s.shape, axis, float(a)) if s.group == "rotating" else s.shape
+            cands.append((bbox_gap(mbox, bbox(t)), s.name, float(a), t))
+    cands.sort(key=lambda c: (c[0], c[1], c[2]))
+    best = (math.inf, "", 0.0)
+    for gap, name, a, t in cands:
+        if gap >= best[0]:
+            break
+        d = solid_distance(motor, t)
+        if d < best[0]:
+            best = (d, name, a)
+    return best
+
+
+def turning_clearance(solids: dict[str, Solid], axis: Axis, angles_deg, subject) -> tuple[float, str, str, float]:
+    """(least distance, turning solid, fixed solid, frame angle) from the turning solids chosen by
+    ``subject(name)`` to every fixed solid, at each of ``angles_deg`` (branch and bound on boxes)."""
+    fixed = [(s, bbox(s.shape)) for s in solids.values() if s.group == "fixed"]
+    cands = []
+    for r in solids.values():
+        if r.group != "rotating" or not subject(r.name):
+            continue
+        for a in angles_deg:
+            t = turned(r.shape, axis, float(a))
+            tb = bbox(t)
+            cands += [(bbox_gap(tb, fb), r.name, f.name, float(a), t, f.shape) for f, fb in fixed]
+    cands.sort(key=lambda c: (c[0], c[1], c[2], c[3]))
+    best = (math.inf, "", "", 0.0)
+    for gap, rn, fn, a, t, f in cands:
+        if gap >= best[0]:
+            break
+        d = solid_distance(t, f)
+        if d < best[0]:
+            best = (d, rn, fn, a)
+    return best
+
+
+# -- 3. the end stops -----------------------------------------------------------
+
+
+def meshing_or_bearing(rot: str, fix: str) -> bool:
+    """Pairs left out of the overlap search, as the kit's own pair check leaves them:
+    the wheel against the pinion it meshes with (the pinion turns too), and the axle in the
+    fixed supports' bores (it turns in its own place)."""
+    return (rot.startswith("wheel") and fix.startswith("pinion")) or rot == "axle"
+
+
+def overlaps(solids: dict[str, Solid], axis: Axis, angle_deg: float,
+             skip: frozenset[str] = frozenset()) -> list[tuple[str, str, float]]:
+    """(turning solid, fixed solid, shared mm3) for every pair sharing more than OVERLAP_TOL_MM3
+    with the turning group turned by ``angle_deg`` about ``axis``."""
+    fixed = [(s, bbox(s.shape)) for s in solids.values() if s.group == "fixed" and s.name not in skip]
+    out = []
+    for r in solids.values():
+        if r.group != "rotating" or r.name in skip:
+            continue
+        t = turned(r.shape, axis, angle_deg)
+        tb = bbox(t)
+        for f, fb in fixed:
+            if meshing_or_bearing(r.name, f.name) or bbox_gap(tb, fb) > 0.0:
+                continue
+            v = common_mm3(t, f.shape)
+            if v > OVERLAP_TOL_MM3:
+                out.append((r.name, f.name, v))
+    return out
+
+
+def first_overlap_deg(solids, axis: Axis, inside_deg: float, past_deg: float, tol_deg: float = 0.02) -> float:
+    """Bisection between an angle without overlap and one with: where the first overlap appears."""
+    lo, hi = inside_deg, past_deg
+    while abs(hi - lo) > tol_deg:
+        mid = 0.5 * (lo + hi)
+        if overlaps(solids, axis, mid):
+            hi = mid
+        else:
+            lo = mid
+    return 0.5 * (lo + hi)
+
+
+# -- 4. the keyed bores -----------------------------------------------------------
+
+
+def bore_walls(shape, axis: Axis, axle_radius_mm: float) -> tuple[float, float]:
+    """(least, largest) distance from the axle axis to the wall of the plate's bore round it.
+
+    The bore's wall: the faces all of whose vertices lie within the axle's radius + 2 mm of
+    the axis. Least: OpenCascade's distance from a long segment on the axis to those faces;
+    largest: the farthest vertex."""
+    import cadquery as cq
+
+    walls = []
+    far = 0.0
+    for f in shape.Faces():
+        r = [axis.distance(np.array(v.toTuple())) for v in f.Vertices()]
+        if r and max(r) <= axle_radius_mm + 2.0:
+            walls.append(f)
+            far = max(far, max(r))
+    assert walls, "no bore round the axle axis"
+    p0 = axis.point - 1e4 * axis.direction
+    p1 = axis.point + 1e4 * axis.direction
+    line = cq.Edge.makeLine(cq.Vector(*map(float, p0)), cq.Vector(*map(float, p1)))
+    near = distance(line, cq.Compound.makeCompound(walls))
+    return near, far
+
+
+def axle_radius_mm(solids: dict[str, Solid], axis: Axis) -> float:
+    return max(axis.distance(np.array(v.toTuple())) for v in solids["axle"].shape.Vertices())
+
+
+# -- 5. the counterweight carried ---------------------------------------------------
+
+
+def counterweight_hardware(solids: dict[str, Solid]) -> tuple[str, ...]:
+    """The counterweight, its bracket and the fasteners that touch either (what the bare frame lacks)."""
+    cw = [s for n, s in solids.items() if n.startswith("counterweight")]
+    out = [s.name for s in cw]
+    for n, s in solids.items():
+        if n.startswith(("bolt#", "nut#")) and any(solid_distance(s.shape, c.shape) < TOUCH_MM for c in cw):
+            out.append(n)
+    return tuple(out)
+
+
+def kit_to_file(axis: Axis) -> np.ndarray:
+    """The rotation from the kit frame of the params file (x along the axle, origin on it) to the
+    STEP file's frame: the least rotation taking x onto the axle's direction (identity for a level
+    axle; a polar kit's file stands it at its tilt)."""
+    x = np.array([1.0, 0.0, 0.0])
+    d = axis.direction if axis.direction @ x >= 0 else -axis.direction
+    v, c = np.cross(x, d), float(x @ d)
+    k = np.array([[0.0, -v[2], v[1]], [v[2], 0.0, -v[0]], [-v[1], v[0], 0.0]])
+    return np.eye(3) + k + k @ k / (1.0 + c)  # Rodrigues, for c > -1
+
+
+def unbalance_Nm(solids: dict[str, Solid], axis: Axis, sheet_material: str, axle_material: str,
+                 panel_mass_kg: float, leave_out: tuple[str, ...] = (),
+                 point_masses: tuple[tuple[float, tuple[float, float, float]], ...] = ()) -> tuple[float, float]:
+    """(static unbalance of the turning group about the axis, N*m, with the axis level and the CG
+    at its worst; the CG's distance from the axis, mm). Masses: the solids' volumes times the
+    densities above (parts of the sheet material; the axle of its rod material; the counterweight,
+    the bolts and the nuts steel); the panel's mass as given, at its solid's centre; ``point_masses`` (kg, position in the
+    params file's kit frame: the file's [[rotating_mass]] items, which have no solid)."""
+    moment = np.zeros(3)
+    total = 0.0
+    for s in solids.values():
+        if s.group != "rotating" or s.name in leave_out:
+            continue
+        vol, c = volume_centre(s.shape)
+        if s.name == "panel":
+            m = panel_mass_kg
+        elif s.name == "axle":
+            m = vol * 1e-9 * DENSITY_KG_M3[axle_material]
+        elif (s.name.startswith("counterweight") and "bracket" not in s.name) or s.name.startswith(("bolt#", "nut#")):
+            m = vol * 1e-9 * STEEL_KG_M3
+        else:
+            m = vol * 1e-9 * DENSITY_KG_M3[sheet_material]
+        moment += m * axis.perpendicular(c)
+        total += m
+    rot = kit_to_file(axis)
+    for m, pos in point_masses:
+        moment += m * axis.perpendicular(rot @ np.asarray(pos, dtype=float))
+        total += m
+    r = float(np.linalg.norm(moment))  # kg*mm
+    return r * 1e-3 * G_M_S2, r / total if total else 0.0
