@@ -50,14 +50,21 @@ def read(path: str | Path) -> dict[str, Solid]:
 def write_step_of(params: str, out: Path, sets: tuple[str, ...] = ()) -> Path:
     """The kit's STEP file, written by sheetgen's own writer (the file the build puts in
     model/assembly.step): the only thing the checks read besides the params file."""
+    return write_step_and_figures(params, out, sets)[0]
+
+
+def write_step_and_figures(params: str, out: Path, sets: tuple[str, ...] = ()) -> tuple[Path, dict]:
+    """The STEP file as :func:`write_step_of` writes it, and the kit's own figures (for the one
+    internal cross-check that compares them with the file's)."""
     from sheetgen.design.kit import build_kit
     from sheetgen.design.spec import load_spec
     from sheetgen.io.step import write_step
     from sheetgen.model3d.solids import build_assembly, build_model
 
     spec = load_spec(params, list(sets))
-    model = build_model(build_kit(spec), spec)
-    return write_step(build_assembly(model, name=Path(params).stem), out)
+    kit = build_kit(spec)
+    model = build_model(kit, spec)
+    return write_step(build_assembly(model, name=Path(params).stem), out), dict(kit.figures)
 
 
 # -- OpenCascade measures ---------------------------------------------------
@@ -91,11 +98,53 @@ def _boundary(shape):
 
 def solid_distance(a, b) -> float:
     """The least distance between two solids: between their boundaries (OpenCascade skips its
-    slow inside-the-solid test there), 0 when they share volume."""
+    slow inside-the-solid test there), 0 when one lies inside the other.
+
+    Boundaries apart (d > 0), the solids either share no volume or one holds a whole shell of the
+    other: each shell is connected and meets no face of the other solid, so it lies wholly inside
+    or wholly outside it (and two solids whose shells all lie outside each other share nothing:
+    point-set topology, common practice). So one vertex of each shell, classified against the
+    other solid (BRepClass3d_SolidClassifier), decides."""
     d = distance(_boundary(a), _boundary(b))
-    if d > 0.0 and bbox_gap(bbox(a), bbox(b)) == 0.0 and common_mm3(a, b) > OVERLAP_TOL_MM3:
+    if d > 0.0 and bbox_gap(bbox(a), bbox(b)) == 0.0 and (_shell_inside(a, b) or _shell_inside(b, a)):
         return 0.0
     return d
+
+
+def _shell_inside(a, b, classifiers=None) -> bool:
+    """Whether a vertex of some shell of ``a`` lies strictly inside a solid of ``b``
+    (``classifiers``: :func:`classifiers` of ``b``, when the caller keeps them)."""
+    from OCP.TopAbs import TopAbs_IN
+
+    for c in classifiers if classifiers is not None else _classifiers(b):
+        for p in _shell_points(a):
+            c.Perform(p, 1e-7)
+            if c.State() == TopAbs_IN:
+                return True
+    return False
+
+
+def _classifiers(shape) -> list:
+    """One OpenCascade point-in-solid classifier per solid of the shape (BRepClass3d_SolidClassifier)."""
+    from OCP.BRepClass3d import BRepClass3d_SolidClassifier
+
+    return [BRepClass3d_SolidClassifier(s.wrapped) for s in shape.Solids()]
+
+
+def _shell_points(shape) -> list:
+    """The first vertex of each shell of the shape."""
+    from OCP.BRep import BRep_Tool
+    from OCP.TopAbs import TopAbs_SHELL, TopAbs_VERTEX
+    from OCP.TopExp import TopExp_Explorer
+    from OCP.TopoDS import TopoDS
+
+    out = []
+    shells = TopExp_Explorer(shape.wrapped, TopAbs_SHELL)
+    while shells.More():
+        v = TopExp_Explorer(shells.Current(), TopAbs_VERTEX)
+        out.append(BRep_Tool.Pnt_s(TopoDS.Vertex_s(v.Current())))
+        shells.Next()
+    return out
 
 
 def common_mm3(a, b) -> float:
@@ -131,6 +180,28 @@ def bbox(shape) -> tuple[np.ndarray, np.ndarray]:
 def bbox_gap(a, b) -> float:
     (alo, ahi), (blo, bhi) = a, b
     return float(np.linalg.norm(np.maximum(0.0, np.maximum(blo - ahi, alo - bhi))))
+
+
+def obb(shape, grow_mm: float = 0.0):
+    """An oriented box round the shape, grown by ``grow_mm`` along each of its axes (OpenCascade's
+    Bnd_OBB over the shape's vertices), or None when a face is curved. A plane-faced solid lies
+    in the convex hull of its vertices, so the box holds it; grown by r, it holds every point
+    within r of it (a prefilter only: boxes apart prove the solids at least r apart)."""
+    from OCP.Bnd import Bnd_OBB
+    from OCP.BRepBndLib import BRepBndLib
+
+    if any(f.geomType() != "PLANE" for f in shape.Faces()):
+        return None
+    box = Bnd_OBB()
+    BRepBndLib.AddOBB_s(shape.wrapped, box, False, False, False)
+    if grow_mm > 0.0:
+        box.Enlarge(grow_mm)
+    return box
+
+
+def boxes_apart(a, b) -> bool:
+    """Two oriented boxes (:func:`obb`) that share no point; False when either is missing."""
+    return a is not None and b is not None and bool(a.IsOut(b))
 
 
 @dataclass(frozen=True)
@@ -232,11 +303,20 @@ def _up(panel) -> np.ndarray:
 # -- 2. the motor clear ---------------------------------------------------------
 
 
-def motor_clearance(solids: dict[str, Solid], axis: Axis, angles_deg, exempt) -> tuple[float, str, float]:
+def motor_clearance(solids: dict[str, Solid], axis: Axis, angles_deg, exempt,
+                    at_least_mm: float = 0.0) -> tuple[float, str, float]:
     """(least distance, to what, at which frame angle) from the motor solid (its body and shaft)
     to every solid not exempted by ``exempt(name)``; turning solids at each of ``angles_deg``.
     Branch and bound: candidates in the order of their bounding boxes' gap, which no distance
-    can beat."""
+    can beat.
+
+    With ``at_least_mm`` = r > 0 the answer is exact where it is below r, and (inf, "", 0)
+    when nothing comes that close: a turning solid is measured in its own place against the
+    motor turned back by the frame's angle (the same relative position), and only its faces
+    whose oriented boxes meet the motor's grown by r are measured (:func:`obb`); a face out of
+    that reach is at least r from the motor."""
+    if at_least_mm > 0.0:
+        return _motor_clearance_within(solids, axis, angles_deg, exempt, at_least_mm)
     motor = solids["motor"].shape
     mbox = bbox(motor)
     cands = []
@@ -255,6 +335,41 @@ def motor_clearance(solids: dict[str, Solid], axis: Axis, angles_deg, exempt) ->
         if d < best[0]:
             best = (d, name, a)
     return best
+
+
+def _motor_clearance_within(solids, axis: Axis, angles_deg, exempt, r_mm: float) -> tuple[float, str, float]:
+    import cadquery as cq
+
+    motor = solids["motor"].shape
+    faces: dict[str, list] = {}  # name -> [(face, its oriented box)], or [] for a solid with a curved face
+    inside: dict[str, list] = {}  # name -> its point-in-solid classifiers
+    best = (math.inf, "", 0.0)
+    for s in solids.values():
+        if s.name == "motor" or exempt(s.name):
+            continue
+        whole = obb(s.shape)
+        for a in (angles_deg if s.group == "rotating" else [0.0]):
+            m = turned(motor, axis, -float(a))  # the motor where the solid, turned by a, sees it
+            reach = obb(m, r_mm)
+            if boxes_apart(reach, whole):
+                continue
+            if s.name not in faces:
+                faces[s.name] = [(f, obb(f)) for f in s.shape.Faces()] if whole is not None else []
+            if faces[s.name]:
+                near = [f for f, box in faces[s.name] if not boxes_apart(reach, box)]
+                if not near:
+                    continue
+                d = distance(_boundary(m), cq.Compound.makeCompound(near))
+            else:
+                d = distance(_boundary(m), _boundary(s.shape))
+            if d > 0.0 and bbox_gap(bbox(m), bbox(s.shape)) == 0.0:
+                if s.name not in inside:
+                    inside[s.name] = _classifiers(s.shape)
+                if _shell_inside(m, s.shape, inside[s.name]) or _shell_inside(s.shape, m):
+                    d = 0.0
+            if d < best[0]:
+                best = (d, s.name, float(a))
+    return best if best[0] <= r_mm else (math.inf, "", 0.0)
 
 
 def turning_clearance(solids: dict[str, Solid], axis: Axis, angles_deg, subject) -> tuple[float, str, str, float]:
@@ -294,15 +409,15 @@ def overlaps(solids: dict[str, Solid], axis: Axis, angle_deg: float,
              skip: frozenset[str] = frozenset()) -> list[tuple[str, str, float]]:
     """(turning solid, fixed solid, shared mm3) for every pair sharing more than OVERLAP_TOL_MM3
     with the turning group turned by ``angle_deg`` about ``axis``."""
-    fixed = [(s, bbox(s.shape)) for s in solids.values() if s.group == "fixed" and s.name not in skip]
+    fixed = [(s, bbox(s.shape), obb(s.shape)) for s in solids.values() if s.group == "fixed" and s.name not in skip]
     out = []
     for r in solids.values():
         if r.group != "rotating" or r.name in skip:
             continue
         t = turned(r.shape, axis, angle_deg)
-        tb = bbox(t)
-        for f, fb in fixed:
-            if meshing_or_bearing(r.name, f.name) or bbox_gap(tb, fb) > 0.0:
+        tb, to = bbox(t), obb(t)
+        for f, fb, fo in fixed:
+            if meshing_or_bearing(r.name, f.name) or bbox_gap(tb, fb) > 0.0 or boxes_apart(to, fo):
                 continue
             v = common_mm3(t, f.shape)
             if v > OVERLAP_TOL_MM3:

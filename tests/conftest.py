@@ -15,9 +15,46 @@ ROOT = Path(__file__).resolve().parents[1]
 PARAMS = ROOT / "params"
 DEMO = PARAMS / "demo.toml"
 
-settings.register_profile("ci", max_examples=25, deadline=None,
+# The suite's draws are derandomized: the same examples on every run and machine, so a CI run
+# fails only on a change of the code. `--hypothesis-profile explore` draws afresh (and keeps the
+# failures it finds in .hypothesis/ for the next run), for a search beyond the fixed draws.
+settings.register_profile("ci", max_examples=25, deadline=None, derandomize=True,
+                          suppress_health_check=[HealthCheck.too_slow])
+settings.register_profile("explore", max_examples=25, deadline=None,
                           suppress_health_check=[HealthCheck.too_slow])
 settings.load_profile("ci")
+
+
+# Costly fixtures, by the module that holds them: the tests that use one run on one worker
+# (`--dist loadgroup` in pyproject.toml), so the suite makes it once, not once per worker.
+SHARED_FIXTURES = {
+    "test_step_machine": ("kit",),  # one STEP file per shipped variant (a group per variant)
+    "test_assembly": ("kits", "wrong", "demo_run"),
+    "test_machine_motor": ("demo_model",),
+    "test_clipped_distance": ("demo_model",),
+    "test_derive": ("demo",),
+    "test_cli_parts": ("demo_out",),
+    "test_output_safety": ("previous_build",),
+}
+
+
+@pytest.hookimpl(tryfirst=True)
+def pytest_collection_modifyitems(config, items):
+    """Mark the tests that share a costly fixture (SHARED_FIXTURES, and the session's demo build)
+    with one xdist group each; a parametrized fixture gets a group per value."""
+    for item in items:
+        module = item.module.__name__.rsplit(".", 1)[-1]
+        names = getattr(item, "fixturenames", ())
+        spec = getattr(item, "callspec", None)
+        for name in SHARED_FIXTURES.get(module, ()):
+            if name in names:
+                value = spec.params.get(name) if spec is not None else None
+                suffix = f"-{Path(str(value)).stem}" if value is not None else ""
+                item.add_marker(pytest.mark.xdist_group(f"{module}-{name}{suffix}"))
+                break
+        else:
+            if "demo_build_3" in names:
+                item.add_marker(pytest.mark.xdist_group("demo-build-3"))
 
 
 @pytest.hookimpl(wrapper=True)

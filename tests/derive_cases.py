@@ -59,6 +59,7 @@ class Outcome:
     clearance_mm: float | None = None
     spec: object = None
     kit: object = None
+    failing: tuple[str, ...] = ()  # the binding balance checks a built kit fails
 
 
 NUM = r"(-?[0-9]+(?:\.[0-9]+)?(?:e-?[0-9]+)?)"
@@ -112,4 +113,5 @@ def judge(base, overrides: list[str]) -> Outcome:
     clear = frame_sweep(kit, travel_deg(spec)).min_clearance_mm
     if not kerf_exact(kit, spec.laser.kerf_mm):
         raise AssertionError(f"a part is not kerf-exact: {overrides}")
-    return Outcome(True, "built", "", report.ok, clear, spec, kit)
+    failing = tuple(c.name for c in report.checks if c.binding and not c.passed)
+    return Outcome(True, "built", "", report.ok, clear, spec, kit, failing)

@@ -12,6 +12,7 @@ frame. None of these reads the kit's prisms, layout or checks.
 
 from __future__ import annotations
 
+import functools
 import tomllib
 from pathlib import Path
 
@@ -36,9 +37,10 @@ BORE_OUT_OF_ROUND_MM = 0.2  # a keyed bore: least and largest wall distance diff
 
 
 class Kit:
-    def __init__(self, params: str, step: Path):
+    def __init__(self, params: str, step: Path, figures: dict):
         self.params = params
         self.step = step
+        self.figures = figures  # the kit's own figures, for the internal cross-check only
         self.solids = M.read(step)
         with open(params, "rb") as f:
             p = tomllib.load(f)
@@ -50,11 +52,15 @@ class Kit:
                                   for r in p.get("rotating_mass", []))
         self.axis = M.axle_axis(self.solids)
 
+    @functools.cached_property
+    def counterweight_hardware(self) -> tuple[str, ...]:
+        return M.counterweight_hardware(self.solids)
+
 
 @pytest.fixture(scope="module", params=CASES, ids=lambda p: Path(p).stem)
 def kit(request, tmp_path_factory) -> Kit:
     out = tmp_path_factory.mktemp(Path(request.param).stem) / "assembly.step"
-    return Kit(request.param, M.write_step_of(request.param, out))
+    return Kit(request.param, *M.write_step_and_figures(request.param, out))
 
 
 def test_the_file_holds_the_named_solids_in_their_groups(kit):
@@ -79,9 +85,32 @@ def _not_a_subject(name: str) -> bool:
 def test_the_motor_and_its_shaft_clear_all_but_their_holders_through_the_travel(kit):
     lim = kit.travel_limit_deg
     angles = sorted(set(np.linspace(-lim, lim, 13).round(6).tolist()))
-    d, other, angle = M.motor_clearance(kit.solids, kit.axis, angles, _not_a_subject)
+    d, other, angle = M.motor_clearance(kit.solids, kit.axis, angles, _not_a_subject, at_least_mm=MOTOR_GAP_MM)
     assert d >= MOTOR_GAP_MM - 1e-6, (f"{Path(kit.params).name}: the motor comes {d:.3f} mm from {other} "
                                       f"(frame at {angle:g} deg), less than {MOTOR_GAP_MM:g} mm")
+
+
+def test_the_motor_check_sees_a_motor_moved_half_a_gap_too_close(kit):
+    """The check above is not vacuous: the motor moved straight toward the nearest solid it must
+    clear (measured with the whole-solid distance, no reach) until 0.5 mm is left is reported."""
+    import cadquery as cq
+
+    if Path(kit.params).stem != "demo":
+        pytest.skip("run on the demo only (one moved motor shows the check can fail)")
+    lim = kit.travel_limit_deg
+    d, other, angle = M.motor_clearance(kit.solids, kit.axis, [0.0], lambda n: _not_a_subject(n)
+                                        or kit.solids[n].group == "rotating")
+    motor = kit.solids["motor"].shape
+    from OCP.BRepExtrema import BRepExtrema_DistShapeShape
+
+    ext = BRepExtrema_DistShapeShape(motor.wrapped, kit.solids[other].shape.wrapped)
+    p, q = ext.PointOnShape1(1), ext.PointOnShape2(1)
+    step = np.array([q.X() - p.X(), q.Y() - p.Y(), q.Z() - p.Z()])
+    step *= (d - 0.5) / np.linalg.norm(step)
+    moved = dict(kit.solids)
+    moved["motor"] = M.Solid("motor", "fixed", motor.moved(cq.Location(cq.Vector(*map(float, step)))))
+    near, who, _ = M.motor_clearance(moved, kit.axis, [-lim, 0.0, lim], _not_a_subject, at_least_mm=MOTOR_GAP_MM)
+    assert near == pytest.approx(0.5, abs=1e-6) and who == other
 
 
 def test_the_holders_do_hold_the_motor(kit):
@@ -125,7 +154,7 @@ def test_the_wheel_and_the_ribs_are_keyed_to_the_axle(kit):
 
 def test_the_counterweight_balances_the_frame(kit):
     args = (kit.solids, kit.axis, kit.sheet_material, kit.axle_material, kit.panel_mass_kg)
-    bare_Nm, bare_off_mm = M.unbalance_Nm(*args, leave_out=M.counterweight_hardware(kit.solids),
+    bare_Nm, bare_off_mm = M.unbalance_Nm(*args, leave_out=kit.counterweight_hardware,
                                           point_masses=kit.point_masses)
     residual_Nm, _ = M.unbalance_Nm(*args, point_masses=kit.point_masses)
     if bare_off_mm < CW_THRESHOLD_MM:
@@ -137,14 +166,11 @@ def test_the_counterweight_balances_the_frame(kit):
 
 def test_the_unbalance_agrees_with_the_kits_own_figures(kit):
     """Internal cross-check (not the reference): the kit's balance figures against the file's."""
-    from sheetgen.design.kit import build_kit
-    from sheetgen.design.spec import load_spec
-
-    figures = dict(build_kit(load_spec(kit.params, [])).figures)
+    figures = kit.figures
     args = (kit.solids, kit.axis, kit.sheet_material, kit.axle_material, kit.panel_mass_kg)
     # the kit's own balance figures leave the bought fasteners' mass out: so does this comparison
     fasteners = tuple(n for n in kit.solids if n.startswith(("bolt#", "nut#")))
-    bare_Nm, _ = M.unbalance_Nm(*args, leave_out=M.counterweight_hardware(kit.solids) + fasteners,
+    bare_Nm, _ = M.unbalance_Nm(*args, leave_out=kit.counterweight_hardware + fasteners,
                                 point_masses=kit.point_masses)
     ours_gmm = bare_Nm / M.G_M_S2 * 1e6
     assert ours_gmm == pytest.approx(figures["bare_unbalance_gmm"], rel=0.05, abs=1.0)
@@ -158,8 +184,9 @@ def test_the_bolts_are_drawn_in_their_holes_on_the_faces_they_clamp(kit):
     assert sum(n.startswith("bolt#") for n in fasteners) >= 4, sorted(fasteners)
     for n, f in fasteners.items():
         assert f.group == "rotating", n
-        box = M.bbox(f.shape)
-        near = [s for m, s in kit.solids.items() if m != n and M.bbox_gap(box, M.bbox(s.shape)) == 0.0]
+        box, reach = M.bbox(f.shape), M.obb(f.shape, M.TOUCH_MM)
+        near = [s for m, s in kit.solids.items() if m != n and M.bbox_gap(box, M.bbox(s.shape)) == 0.0
+                and not M.boxes_apart(reach, M.obb(s.shape))]
         for s in near:
             v = M.common_mm3(f.shape, s.shape)
             assert v <= M.OVERLAP_TOL_MM3, f"{n} shares {v:.3f} mm3 with {s.name}"

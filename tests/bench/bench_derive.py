@@ -47,6 +47,7 @@ def main() -> None:
     built = collections.Counter()
     refused = collections.Counter()
     passed = collections.Counter()
+    failing = collections.Counter()  # (motor, balance check) -> built draws failing it
     retried = collections.Counter()
     t_built, t_refused = [], []
     for i in range(args.draws):
@@ -59,6 +60,8 @@ def main() -> None:
         if out.built:
             built[motor] += 1
             passed[motor] += bool(out.balance_ok)
+            for name in out.failing:
+                failing[(motor, name)] += 1
             t_built.append(dt)
         else:
             refused[(motor, out.reason)] += 1
@@ -81,6 +84,9 @@ def main() -> None:
         for (m, why), c in sorted(refused.items(), key=lambda x: -x[1]):
             if m == motor:
                 print(f"      refused, binding {why}: {c}")
+        for (m, name), c in sorted(failing.items(), key=lambda x: -x[1]):
+            if m == motor:
+                print(f"      built but failing the balance check {name!r}: {c}")
     print(f"built {sum(built.values())}, refused {sum(refused.values())}, "
           f"pass the balance check {sum(passed.values())}")
     if retried:
