@@ -30,6 +30,7 @@ from dataclasses import dataclass
 
 from sheetgen.errors import GeometryBug
 from sheetgen.production.nesting.decode import Decoder, State
+from sheetgen.production.nesting.pairs import expand, pair_item
 from sheetgen.production.nesting.place import RULES, Sheet, ShapeLibrary, Work
 
 KINDS_PER_WIDTH = 10     # column kinds kept per leading box (the fullest)
@@ -74,12 +75,64 @@ def _windows(lib: ShapeLibrary, items: list[int]) -> list[tuple[float, float]]:
 
 
 def column_layout(lib: ShapeLibrary, counts: list[int], usable, work: Work, budget_units: int, lower: int = 1,
-                  stop: Callable[[], bool] = lambda: False, finished: int = 3):
+                  stop: Callable[[], bool] = lambda: False, finished: int = 3, pairs: bool = False):
     """Sheets as lists of (item, shape id, px, py) for ``counts`` copies of
     each item, or None when the budget ran out (or ``stop()`` said so) before
     one was finished, or there is nothing large. Stops early on a layout of
     ``lower`` sheets; ``finished`` column layouts (the best) are completed
-    with the smaller parts and the best kept."""
+    with the smaller parts and the best kept.
+
+    With ``pairs``, the copies of each item that pairs well
+    (:mod:`~sheetgen.production.nesting.pairs`) are also laid out two at a
+    time as its pair (an odd copy alone): the pair is a box kind of its own,
+    in a column or in a row on a column's top, and a piece of its own among
+    the smaller parts placed last. The best such layout is finished after
+    the ``finished`` layouts of single parts, while the budget lasts, and
+    kept only when it is better; its pairs are turned back into their two
+    parts."""
+    plain = _candidates(lib, counts, usable, work, budget_units, stop)
+    if plain is None:
+        return None
+    todo = [(plain[0], plain[1], layouts) for layouts in plain[2][:finished]]
+    if pairs:
+        counts2 = with_pairs(lib, counts)
+        if counts2 != list(counts) + [0] * (len(counts2) - len(counts)):
+            paired = _candidates(lib, counts2, usable, work, budget_units, stop)
+            if paired is not None and paired[2]:
+                todo.append((paired[0], paired[1], paired[2][0]))
+    best = None
+    for classes, cnt, layouts in todo:
+        if best is not None and (work.units >= budget_units or stop() or len(best[1]) <= lower):
+            break
+        placed = _finish(lib, classes, cnt, layouts, usable, work, stop)
+        if placed is None:
+            continue
+        placed = [expand(lib, sheet) for sheet in placed]
+        final = (len(placed), sum(lib.shapes[sid].area for _i, sid, _x, _y in placed[-1]))
+        if best is None or final < best[0]:
+            best = (final, placed)
+    return None if best is None else best[1]
+
+
+def with_pairs(lib: ShapeLibrary, counts: list[int]) -> list[int]:
+    """``counts`` over the library's items (pair items included) with the
+    copies of each item that pairs well taken two at a time as its pair item."""
+    out = list(counts)
+    for i, c in enumerate(counts):
+        if c >= 2 and i not in lib.composite_items:
+            pi = pair_item(lib, i)
+            if pi is not None:
+                out.extend([0] * (len(lib.item_shapes) - len(out)))
+                out[pi] += c // 2
+                out[i] = c % 2
+    out.extend([0] * (len(lib.item_shapes) - len(out)))
+    return out
+
+
+def _candidates(lib: ShapeLibrary, counts: list[int], usable, work: Work, budget_units: int,
+                stop: Callable[[], bool]):
+    """(classes, counts, column layouts fewest column sheets first), or None
+    when nothing is large or the search found nothing."""
     s = lib.spacing
     x0, y0, x1, y1 = usable
     tol = TOL_UNITS / lib.scale
@@ -124,17 +177,7 @@ def column_layout(lib: ShapeLibrary, counts: list[int], usable, work: Work, budg
     if not found:
         return None
     # the fewest column sheets first; the smaller parts decide the final count
-    best = None
-    for key in sorted(found)[:finished]:
-        if best is not None and (work.units >= budget_units or stop() or len(best[1]) <= lower):
-            break
-        placed = _finish(lib, classes, counts, found[key], usable, work, stop)
-        if placed is None:
-            continue
-        final = (len(placed), sum(lib.shapes[sid].area for _i, sid, _x, _y in placed[-1]))
-        if best is None or final < best[0]:
-            best = (final, placed)
-    return None if best is None else best[1]
+    return classes, counts, [found[key] for key in sorted(found)]
 
 
 def _finish(lib: ShapeLibrary, classes, counts: list[int], layouts, usable, work: Work,
