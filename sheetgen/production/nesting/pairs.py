@@ -135,16 +135,20 @@ def best_pair(lib: ShapeLibrary, first: int, second: int) -> Pair:
 
 
 def may_pair(lib: ShapeLibrary, item: int) -> bool:
-    """Whether a pair of ``item`` can reach PAIR_RATIO at all: the second copy
-    cannot enter a hole of the first (it is as large as the first's outer
-    outline, which is larger than any of its holes), so the pair's box holds
-    two outer outlines and is at least twice the outer outline's area. A part
-    whose outer outline fills more than PAIR_RATIO of its grown box (a
-    rectangle, a frame) is not worth the no-fit polygons."""
+    """Whether a pair of ``item`` can reach PAIR_RATIO at all. The second
+    copy cannot enter a hole of the first (it is as large as the first's
+    outer outline, which is larger than any of its holes), and the two outer
+    outlines grown by half the spacing are disjoint and lie in the pair's box
+    grown by half the spacing on every side: that grown box is at least twice
+    the grown outer outline's area (the buffer is drawn inside the true
+    offset, so its area is never overstated). A part that fills its grown
+    box more than PAIR_RATIO that way (a rectangle, a frame) is not worth the
+    no-fit polygons."""
     s = lib.spacing
     sh = lib.shapes[lib.item_shapes[item][0]]
-    outer = Polygon(sh.polygon.exterior).area
-    return outer <= PAIR_RATIO * (sh.width + s) * (sh.height + s)
+    outer = Polygon(sh.polygon.exterior)
+    grown = outer.buffer(s / 2, quad_segs=8).area if s > 0 else outer.area
+    return grown <= PAIR_RATIO * (sh.width + s) * (sh.height + s)
 
 
 def item_pairs(lib: ShapeLibrary, item: int) -> list[Pair]:
