@@ -201,3 +201,19 @@ def test_the_engine_lays_out_steps_in_pairs_and_verifies_them():
             for b in sheet[i + 1:]:
                 assert shapely.distance(a.polygon, b.polygon) >= s - TOL
     assert math.isclose(sum(len(sh) for sh in result.sheets), 12)
+
+
+def test_steps_on_a_strip_interlock_at_least_as_tightly_as_pairs():
+    # Source: hand count. A strip 64 mm wide, spacing 2, six steps: three pairs (102 x 62 each,
+    # see above) in a row take 3 x 102 + 2 x 2 = 310 mm; single steps, which cannot stack two
+    # deep unless they interlock (40 + 2 + 40 > 64), would take 6 x 100 + 5 x 2 = 610 mm.
+    s = 2.0
+    items = [NestItem("step", STEP, 6, (0.0, 90.0, 180.0, 270.0))]
+    result = nest(items, strip_width_mm=64.0, spacing_mm=s, time_limit_s=CEILING_S, effort=2.0, seed=1)
+    verify(result, items)
+    assert not result.unplaced and len(result.sheets[0]) == 6
+    assert result.strip_length_mm <= 3 * (100 + s) + 2 * s + TOL
+    parts = result.sheets[0]
+    for i, a in enumerate(parts):
+        for b in parts[i + 1:]:
+            assert shapely.distance(a.polygon, b.polygon) >= s - TOL

@@ -157,6 +157,13 @@ class ShapeLibrary:
         self._composite_keys[key] = sid_new
         return sid_new
 
+    def parts_of(self, item: int) -> list[int]:
+        """The real items an item stands for: itself, or a pair item's two copies."""
+        if item not in self.composite_items:
+            return [item]
+        real, parts = self.composites[self.item_shapes[item][0]]
+        return [real] * len(parts)
+
     def add_item(self, shape_ids: tuple[int, ...]) -> int:
         """One more item made of the given (composite) shapes; returns its index."""
         self.item_shapes.append(tuple(shape_ids))
