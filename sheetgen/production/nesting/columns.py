@@ -17,6 +17,12 @@ those sheets, windows included, by the ordinary placement rule
 (:class:`~sheetgen.production.nesting.decode.Decoder`), and onto new sheets
 when they fit none.
 
+Parts far from their boxes may also go in *pairs* (:mod:`~sheetgen.production.nesting.pairs`:
+two copies, the second turned, locked at the place that gives the smallest
+box): the best column layout with pairs is finished after the others, while
+the budget lasts, and kept only when it needs fewer sheets (or the same with
+less on the last).
+
 The whole is deterministic and charged to the work budget; the engine keeps
 it only when it needs fewer sheets (or the same number with a less filled last
 sheet) than the order search.

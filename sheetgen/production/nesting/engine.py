@@ -21,7 +21,9 @@ width along y; the length used is the rightmost cut contour plus the margin.
 The search repeatedly asks for a layout in a strip a little shorter than the
 best so far (2 % at first; the cost is the area of the parts that do not fit),
 halves the step (down to 0.2 %) when it cannot find one, and carries the plan
-that came closest into the next attempt.
+that came closest into the next attempt. When some parts pair well
+(:mod:`~sheetgen.production.nesting.pairs`), a first layout with them in pairs
+is decoded too, and the search goes on from the shorter of the two.
 
 Large runs are cut into batches (:mod:`~sheetgen.production.nesting.batches`); the work
 budget and the clocks are in :mod:`~sheetgen.production.nesting.budget`, the improvement
