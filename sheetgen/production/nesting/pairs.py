@@ -134,6 +134,23 @@ def best_pair(lib: ShapeLibrary, first: int, second: int) -> Pair:
     return Pair(first, second, int(ax), int(ay), int(bx), int(by), width, height, ratio)
 
 
+def _grown_outer(lib: ShapeLibrary, item: int) -> float:
+    """Area of the item's outer outline grown by half the spacing (drawn
+    inside the true offset, so never overstated)."""
+    s = lib.spacing
+    outer = Polygon(lib.shapes[lib.item_shapes[item][0]].polygon.exterior)
+    return outer.buffer(s / 2, quad_segs=8).area if s > 0 else outer.area
+
+
+def saving_bound(lib: ShapeLibrary, item: int) -> float:
+    """At most the box area (grown by the spacing) a pair of ``item`` saves
+    against two single boxes: the pair's grown box holds the two grown outer
+    outlines (see :func:`may_pair`), so it is at least twice their area."""
+    s = lib.spacing
+    sh = lib.shapes[lib.item_shapes[item][0]]
+    return max(0.0, 2 * (sh.width + s) * (sh.height + s) - 2 * _grown_outer(lib, item))
+
+
 def may_pair(lib: ShapeLibrary, item: int) -> bool:
     """Whether a pair of ``item`` can reach PAIR_RATIO at all. The second
     copy cannot enter a hole of the first (it is as large as the first's
@@ -146,9 +163,7 @@ def may_pair(lib: ShapeLibrary, item: int) -> bool:
     no-fit polygons."""
     s = lib.spacing
     sh = lib.shapes[lib.item_shapes[item][0]]
-    outer = Polygon(sh.polygon.exterior)
-    grown = outer.buffer(s / 2, quad_segs=8).area if s > 0 else outer.area
-    return grown <= PAIR_RATIO * (sh.width + s) * (sh.height + s)
+    return _grown_outer(lib, item) <= PAIR_RATIO * (sh.width + s) * (sh.height + s)
 
 
 def item_pairs(lib: ShapeLibrary, item: int) -> list[Pair]:
