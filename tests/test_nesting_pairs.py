@@ -151,6 +151,22 @@ def test_pairs_keep_the_spacing_and_their_box(case):
         assert (x1 - x0 + s) * (y1 - y0 + s) <= PAIR_RATIO * two_boxes + 1e-6
 
 
+def test_a_crack_in_the_no_fit_polygon_does_not_stack_a_pair():
+    # Source: shapely.distance on the real outlines. A plate with a slot as wide as its arms,
+    # turned 17 degrees (a draw hypothesis found): the no-fit polygon of the plate and its
+    # half-turned copy, summed from edge sweeps, kept a crack of no width along the slot, and a
+    # place on it put one copy into the other (distance 0, 32 mm^2 of overlap).
+    poly = Polygon([(0, 0), (19.126095119260707, 5.847434094454735), (16.61981663178491, 14.045101647865415),
+                    (5.691389065934883, 10.703946040886477), (2.3502334589559446, 21.632373606736504),
+                    (-5.847434094454735, 19.126095119260707)])
+    s = 0.5
+    lib = library(poly, s)
+    for b in lib.item_shapes[0]:
+        p = best_pair(lib, lib.item_shapes[0][0], b)
+        pa, pb = pair_polygons(lib, poly, p)
+        assert shapely.distance(pa, pb) >= s - TOL
+
+
 def check_sheets(lib: ShapeLibrary, poly: Polygon, sheets, usable, s: float, parts: int) -> None:
     """Every part inside the usable area and at least the spacing from the others (shapely)."""
     x0, y0, x1, y1 = usable
@@ -217,3 +233,27 @@ def test_steps_on_a_strip_interlock_at_least_as_tightly_as_pairs():
     for i, a in enumerate(parts):
         for b in parts[i + 1:]:
             assert shapely.distance(a.polygon, b.polygon) >= s - TOL
+
+
+def test_pairs_on_a_strip_of_the_esicup_shapes1_instance_are_valid():
+    # Outside source: the ESICUP SHAPES1 instance (tests/data/esicup, licence and source in its
+    # readme); two of its pieces pair within PAIR_RATIO at 0 and 180 degrees, so the strip
+    # search may go on from a first layout in pairs. The layout is checked by verify() and by
+    # shapely (no two pieces overlapping, every piece the instance asks for placed once), and
+    # can be no shorter than the best recorded length (56, recorded_solutions.csv).
+    from pathlib import Path
+
+    from sheetgen.production.nesting.esicup import read_instance
+
+    inst = read_instance(Path(__file__).parent / "data" / "esicup" / "shapes" / "shapes1.xml")
+    result = nest(inst.items, strip_width_mm=inst.strip_width, time_limit_s=CEILING_S, effort=0.5, seed=1)
+    verify(result, inst.items)
+    assert not result.unplaced
+    placed = result.sheets[0]
+    assert sorted((p.item, p.copy) for p in placed) == sorted(
+        (i, c) for i, it in enumerate(inst.items) for c in range(it.qty))
+    for i, a in enumerate(placed):
+        for b in placed[i + 1:]:
+            # touching pieces may overlap by the nester's tolerance in depth (verify: 1e-6 mm)
+            assert shapely.intersection(a.polygon, b.polygon).area <= TOL * min(a.polygon.length, b.polygon.length)
+    assert result.strip_length_mm >= 56.0 - TOL

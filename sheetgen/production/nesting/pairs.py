@@ -32,12 +32,17 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+import numpy as np
+import pyclipper
+import shapely
 from shapely.geometry import Polygon
 
+from sheetgen.errors import GeometryBug
 from sheetgen.production.nesting.place import ShapeLibrary
 
 PAIR_RATIO = 0.9      # a pair is worth offering when its grown box is at most this share of two boxes
 EDGE_UNITS = 6        # work charged per boundary edge examined
+APART_TOL = 5e-7      # mm per metre of part size: gap a pair may lack (the nester's verify allows 1e-6)
 
 
 @dataclass(frozen=True)
@@ -79,10 +84,14 @@ def best_pair(lib: ShapeLibrary, first: int, second: int) -> Pair:
     flat, cuts, _bounds = lib.nfp(first, second)
     xs = flat[:, 0].astype(float)
     ys = flat[:, 1].astype(float)
-    best: tuple | None = None
+    found: list[tuple] = []
     edges = 0
     for i0, i1 in cuts:
         n = i1 - i0
+        # a hole of the no-fit polygon is where the second copy would sit in a hole of the first,
+        # which a copy as large as the first cannot do: only outer rings are followed
+        if not pyclipper.Orientation(flat[i0:i1].tolist()):
+            continue
         for k in range(n):
             j = i0 + k
             j2 = i0 + (k + 1) % n
@@ -116,15 +125,17 @@ def best_pair(lib: ShapeLibrary, first: int, second: int) -> Pair:
                 area = _grown_area(tx, ty, wa, ha, wb, hb, s)
                 w = max(wa, tx + wb) - min(0.0, tx)
                 h = max(ha, ty + hb) - min(0.0, ty)
-                key = (round(area / (sc * sc), 6), round(abs(w - h) / sc, 6), ty, tx)
-                if best is None or key < best[0]:
-                    best = (key, tx, ty)
+                found.append((round(area / (sc * sc), 6), round(abs(w - h) / sc, 6), ty, tx))
             edges += 1
     if lib.work is not None:
         lib.work.add(EDGE_UNITS * edges)
-    if best is None:  # cannot happen: a no-fit polygon of two shapes of positive area has a boundary
-        raise ValueError("no-fit polygon without a boundary")
-    _key, tx, ty = best
+    tx = ty = None
+    for _area, _sq, cy, cx in sorted(set(found)):
+        if _apart(lib, first, second, cx, cy):
+            tx, ty = cx, cy
+            break
+    if tx is None or ty is None:  # cannot happen: the far end of the boundary is always clear; kept safe
+        raise GeometryBug(f"shapes {first} and {second}: no place on their no-fit polygon keeps them apart")
     ax, ay = -min(0, tx), -min(0, ty)
     bx, by = ax + tx, ay + ty
     width = max(ax / sc + sa.width, bx / sc + sb.width)
@@ -164,6 +175,28 @@ def may_pair(lib: ShapeLibrary, item: int) -> bool:
     s = lib.spacing
     sh = lib.shapes[lib.item_shapes[item][0]]
     return _grown_outer(lib, item) <= PAIR_RATIO * (sh.width + s) * (sh.height + s)
+
+
+def _apart(lib: ShapeLibrary, first: int, second: int, tx: int, ty: int) -> bool:
+    """Whether the real outlines of ``first`` at the origin and ``second`` at
+    grid position (tx, ty) are the spacing apart (within the nester's
+    tolerance), measured on the outlines themselves: a no-fit polygon drawn
+    from a sum of edge sweeps may keep a crack of no width where the sweeps
+    of two parallel edges only touch, and a place on such a crack would put
+    the two copies one on the other."""
+    a = lib.shapes[first].polygon
+    b = shapely.transform(lib.shapes[second].polygon, _shift(np.array([tx, ty], dtype=float) / lib.scale))
+    size = max(1000.0, lib.shapes[first].width, lib.shapes[first].height)
+    tol = APART_TOL * size / 1000.0
+    if lib.spacing > 0:
+        return float(shapely.distance(a, b)) >= lib.spacing - tol
+    return float(shapely.intersection(a, b).area) <= tol * (a.length + b.length)
+
+
+def _shift(d: np.ndarray):
+    def move(xy: np.ndarray) -> np.ndarray:
+        return xy + d
+    return move
 
 
 def item_pairs(lib: ShapeLibrary, item: int) -> list[Pair]:
