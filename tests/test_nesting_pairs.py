@@ -257,3 +257,23 @@ def test_pairs_on_a_strip_of_the_esicup_shapes1_instance_are_valid():
             # touching pieces may overlap by the nester's tolerance in depth (verify: 1e-6 mm)
             assert shapely.intersection(a.polygon, b.polygon).area <= TOL * min(a.polygon.length, b.polygon.length)
     assert result.strip_length_mm >= 56.0 - TOL
+
+
+@pytest.mark.parametrize("mode", ["sheet", "strip"])
+def test_the_slotted_plate_is_nested_without_overlaps(mode):
+    # Source: verify() and shapely.distance on the placed outlines. The plate above (a slot as
+    # wide as its arms) once came out of the nester with copies one inside the other, through
+    # the crack in their no-fit polygon (the no-fit polygons are now closed before use).
+    poly = Polygon([(0, 0), (19.126095119260707, 5.847434094454735), (16.61981663178491, 14.045101647865415),
+                    (5.691389065934883, 10.703946040886477), (2.3502334589559446, 21.632373606736504),
+                    (-5.847434094454735, 19.126095119260707)])
+    s = 0.5
+    items = [NestItem("plate", poly, 30, (0.0, 90.0, 180.0, 270.0))]
+    where = {"sheet_mm": (120.0, 80.0), "margin_mm": 1.0} if mode == "sheet" else {"strip_width_mm": 60.0}
+    result = nest(items, spacing_mm=s, time_limit_s=CEILING_S, effort=1.0, seed=1, **where)
+    verify(result, items)
+    assert not result.unplaced
+    for sheet in result.sheets:
+        for i, a in enumerate(sheet):
+            for b in sheet[i + 1:]:
+                assert shapely.distance(a.polygon, b.polygon) >= s - TOL

@@ -201,10 +201,18 @@ class ShapeLibrary:
             a = self._outline[key[0]]
             b = self._outline[key[1]]
             paths, quads = fast_nfp_paths(a, b, self.scale)
+            # closed first (grown, then shrunk as much again): a sum of edge sweeps may keep a crack
+            # of no width where the sweeps of two parallel edges only touch, and the crack, widened
+            # by the shrink below, would be a free place with one part inside the other. Slots and
+            # holes narrower than 2 eps go with it (fits tighter than 1e-10 of the working size)
             off = pyclipper.PyclipperOffset()
             off.MiterLimit = 5.0
             off.AddPaths(paths, pyclipper.JT_MITER, pyclipper.ET_CLOSEDPOLYGON)
-            paths = off.Execute(-self.eps_units)
+            paths = off.Execute(self.eps_units)
+            off = pyclipper.PyclipperOffset()
+            off.MiterLimit = 5.0
+            off.AddPaths(paths, pyclipper.JT_MITER, pyclipper.ET_CLOSEDPOLYGON)
+            paths = off.Execute(-2 * self.eps_units)
             cuts, k = [], 0
             for p in paths:
                 cuts.append((k, k + len(p)))
