@@ -42,6 +42,7 @@ from sheetgen.production.nesting.place import ShapeLibrary
 
 PAIR_RATIO = 0.9      # a pair is worth offering when its grown box is at most this share of two boxes
 EDGE_UNITS = 6        # work charged per boundary edge examined
+APART_UNITS = 8       # work charged per vertex of a place checked on the real outlines
 APART_TOL = 5e-7      # mm per metre of part size: gap a pair may lack (the nester's verify allows 1e-6)
 
 
@@ -185,6 +186,8 @@ def _apart(lib: ShapeLibrary, first: int, second: int, tx: int, ty: int) -> bool
     of two parallel edges only touch, and a place on such a crack would put
     the two copies one on the other."""
     a = lib.shapes[first].polygon
+    if lib.work is not None:
+        lib.work.add(APART_UNITS * int(shapely.get_num_coordinates(a)))
     b = shapely.transform(lib.shapes[second].polygon, _shift(np.array([tx, ty], dtype=float) / lib.scale))
     size = max(1000.0, lib.shapes[first].width, lib.shapes[first].height)
     tol = APART_TOL * size / 1000.0
