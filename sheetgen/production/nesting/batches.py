@@ -68,9 +68,9 @@ def sheet_run(lib, counts, usable, lower, work, budget, rng, clock, jobs):
         # first layout, always finished: bounded work, the same on any machine unless the run's
         # wall-clock ceiling fires, which cuts the finishing short (the parts not yet placed go in
         # rows of boxes onto new sheets); it may use the whole run's budget, the first batch's NFPs
-        # serving the rest
+        # serving the rest; parts that pair well (pairs.py) are offered in pairs too
         got = column_layout(lib, batch, usable, work, max(stage_end, budget), share_lower,
-                            stop=clock.stop, finished=3) or []
+                            stop=clock.stop, finished=3, pairs=True) or []
         unplaced_items: list[int] = []
         if not got or (last and len(got) > share_lower and work.units < stage_end and not clock.stop()):
             stage = Budget(work, work.units + int(max(0, stage_end - work.units) * (1 - ASSIGN_SHARE)))

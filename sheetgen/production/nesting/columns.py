@@ -17,6 +17,12 @@ those sheets, windows included, by the ordinary placement rule
 (:class:`~sheetgen.production.nesting.decode.Decoder`), and onto new sheets
 when they fit none.
 
+Parts far from their boxes may also go in *pairs* (:mod:`~sheetgen.production.nesting.pairs`:
+two copies, the second turned, locked at the place that gives the smallest
+box): the best column layout with pairs is finished after the others, while
+the budget lasts, and kept only when it needs fewer sheets (or the same with
+less on the last).
+
 The whole is deterministic and charged to the work budget; the engine keeps
 it only when it needs fewer sheets (or the same number with a less filled last
 sheet) than the order search.
@@ -30,8 +36,10 @@ from dataclasses import dataclass
 
 from sheetgen.errors import GeometryBug
 from sheetgen.production.nesting.decode import Decoder, State
+from sheetgen.production.nesting.pairs import expand, pair_item, saving_bound
 from sheetgen.production.nesting.place import RULES, Sheet, ShapeLibrary, Work
 
+PAIR_SAVING = 0.25       # pairs are tried when their boxes save at least this share of a sheet's area
 KINDS_PER_WIDTH = 10     # column kinds kept per leading box (the fullest)
 KIND_NODES = 5000        # search nodes per leading box
 SHEET_NODES = 4000       # depth-first nodes per sheet
@@ -74,12 +82,96 @@ def _windows(lib: ShapeLibrary, items: list[int]) -> list[tuple[float, float]]:
 
 
 def column_layout(lib: ShapeLibrary, counts: list[int], usable, work: Work, budget_units: int, lower: int = 1,
-                  stop: Callable[[], bool] = lambda: False, finished: int = 3):
+                  stop: Callable[[], bool] = lambda: False, finished: int = 3, pairs: bool = False):
     """Sheets as lists of (item, shape id, px, py) for ``counts`` copies of
     each item, or None when the budget ran out (or ``stop()`` said so) before
     one was finished, or there is nothing large. Stops early on a layout of
     ``lower`` sheets; ``finished`` column layouts (the best) are completed
-    with the smaller parts and the best kept."""
+    with the smaller parts and the best kept.
+
+    With ``pairs``, the copies of each item that pairs well
+    (:mod:`~sheetgen.production.nesting.pairs`) are also laid out two at a
+    time as its pair (an odd copy alone): the pair is a box kind of its own,
+    in a column or in a row on a column's top, and a piece of its own among
+    the smaller parts placed last. When the pairs' boxes save at least
+    PAIR_SAVING of a sheet against single boxes (less could hardly save a
+    sheet, and the work is better spent on the other searches), the best such
+    layout is finished after the ``finished`` layouts of single parts, while
+    the budget lasts, and kept only when it is better; its pairs are turned
+    back into their two parts."""
+    plain = _candidates(lib, counts, usable, work, budget_units, stop)
+    if plain is None:
+        return None
+    best = None
+
+    def finish(classes, cnt, layouts) -> None:
+        nonlocal best
+        placed = _finish(lib, classes, cnt, layouts, usable, work, stop)
+        if placed is None:
+            return
+        placed = [expand(lib, sheet) for sheet in placed]
+        final = (len(placed), sum(lib.shapes[sid].area for _i, sid, _x, _y in placed[-1]))
+        if best is None or final < best[0]:
+            best = (final, placed)
+
+    def more() -> bool:
+        return best is None or not (work.units >= budget_units or stop() or len(best[1]) <= lower)
+
+    for layouts in plain[2][:finished]:
+        if not more():
+            break
+        finish(plain[0], plain[1], layouts)
+    if pairs and more():
+        x0, y0, x1, y1 = usable
+        sheet_area = (x1 - x0 + lib.spacing) * (y1 - y0 + lib.spacing)
+        counts2 = with_pairs(lib, counts, PAIR_SAVING * sheet_area)
+        if _pair_saving(lib, counts2) >= PAIR_SAVING * sheet_area:
+            paired = _candidates(lib, counts2, usable, work, budget_units, stop)
+            if paired is not None and paired[2] and more():
+                finish(paired[0], paired[1], paired[2][0])
+    return None if best is None else best[1]
+
+
+def _pair_saving(lib: ShapeLibrary, counts: list[int]) -> float:
+    """Box area (grown by the spacing) that the pairs in ``counts`` save
+    against their parts' single boxes, each pair at its best angle."""
+    s = lib.spacing
+    saved = 0.0
+    for i, c in enumerate(counts):
+        if c > 0 and i in lib.composite_items:
+            best = 0.0
+            for sid in lib.item_shapes[i]:
+                _real, parts = lib.composites[sid]
+                single = sum((lib.shapes[p].width + s) * (lib.shapes[p].height + s) for p, _dx, _dy in parts)
+                best = max(best, single - (lib.shapes[sid].width + s) * (lib.shapes[sid].height + s))
+            saved += c * best
+    return saved
+
+
+def with_pairs(lib: ShapeLibrary, counts: list[int], least: float = 0.0) -> list[int]:
+    """``counts`` over the library's items (pair items included) with the
+    copies of each item that pairs well taken two at a time as its pair item.
+    When the pairs could not save ``least`` box area in all (by the bound of
+    :func:`~sheetgen.production.nesting.pairs.saving_bound`), every item is
+    left single without computing a pair."""
+    out = list(counts)
+    real = [(i, c) for i, c in enumerate(counts) if c >= 2 and i not in lib.composite_items]
+    if sum((c // 2) * saving_bound(lib, i) for i, c in real) < least:
+        real = []
+    for i, c in real:
+        pi = pair_item(lib, i)
+        if pi is not None:
+            out.extend([0] * (len(lib.item_shapes) - len(out)))
+            out[pi] += c // 2
+            out[i] = c % 2
+    out.extend([0] * (len(lib.item_shapes) - len(out)))
+    return out
+
+
+def _candidates(lib: ShapeLibrary, counts: list[int], usable, work: Work, budget_units: int,
+                stop: Callable[[], bool]):
+    """(classes, counts, column layouts fewest column sheets first), or None
+    when nothing is large or the search found nothing."""
     s = lib.spacing
     x0, y0, x1, y1 = usable
     tol = TOL_UNITS / lib.scale
@@ -124,17 +216,7 @@ def column_layout(lib: ShapeLibrary, counts: list[int], usable, work: Work, budg
     if not found:
         return None
     # the fewest column sheets first; the smaller parts decide the final count
-    best = None
-    for key in sorted(found)[:finished]:
-        if best is not None and (work.units >= budget_units or stop() or len(best[1]) <= lower):
-            break
-        placed = _finish(lib, classes, counts, found[key], usable, work, stop)
-        if placed is None:
-            continue
-        final = (len(placed), sum(lib.shapes[sid].area for _i, sid, _x, _y in placed[-1]))
-        if best is None or final < best[0]:
-            best = (final, placed)
-    return None if best is None else best[1]
+    return classes, counts, [found[key] for key in sorted(found)]
 
 
 def _finish(lib: ShapeLibrary, classes, counts: list[int], layouts, usable, work: Work,

@@ -21,7 +21,9 @@ width along y; the length used is the rightmost cut contour plus the margin.
 The search repeatedly asks for a layout in a strip a little shorter than the
 best so far (2 % at first; the cost is the area of the parts that do not fit),
 halves the step (down to 0.2 %) when it cannot find one, and carries the plan
-that came closest into the next attempt.
+that came closest into the next attempt. When some parts pair well
+(:mod:`~sheetgen.production.nesting.pairs`), a first layout with them in pairs
+is decoded too, and the search goes on from the shorter of the two.
 
 Large runs are cut into batches (:mod:`~sheetgen.production.nesting.batches`); the work
 budget and the clocks are in :mod:`~sheetgen.production.nesting.budget`, the improvement
@@ -45,6 +47,7 @@ from sheetgen.production.nesting.bound import lower_bound_sheets
 from sheetgen.production.nesting.decode import Decoder
 from sheetgen.production.nesting.model import NestItem, NestResult, PlacedPart
 from sheetgen.production.nesting.nfp import rotate_ccw
+from sheetgen.production.nesting.pairs import expand, paired_parts
 from sheetgen.production.nesting.place import RULES, ShapeLibrary, Sheet, Work, place_one
 from sheetgen.production.nesting.batches import sheet_run
 from sheetgen.production.nesting.budget import Budget, Clock, EFFORT_PER_SECOND, EFFORT_UNITS, StageClock, progress_of
@@ -168,13 +171,22 @@ def nest(items: Sequence[NestItem], *, sheet_mm: tuple[float, float] | None = No
         # "lowest first" rules would lay an open strip out in one long row: not as a start
         orders = [(plan, rule) for plan, rule in orders if RULES[rule][0] <= 1.0]
         first = first_layout(open_dec, orders, stage, clock, strip_progress, used_x)
+        # the same with the parts that pair well laid out two at a time (pairs.py); the search goes on
+        # with whichever first layout is shorter
+        paired = paired_parts(lib, part_items)
+        if paired != part_items and not stage.spent() and not clock.stop():
+            p_orders = [(plan, rule) for plan, rule in initial_orders(lib, paired) if RULES[rule][0] <= 1.0]
+            p_first = first_layout(Decoder(lib, paired, usable, 1, work), p_orders, stage, clock, strip_progress,
+                                   used_x)
+            if not p_first.final.unplaced and used_x(p_first) < used_x(first):
+                part_items, first = paired, p_first
         stage_clock = StageClock(clock, clock.deadline)
         placements, unplaced_parts, _ = improve(lib, "strip", part_items, usable, 1, first, stage, rng, stage_clock,
                                                  True, jobs)
         length = max(px / lib.scale + lib.shapes[sid].width for _p, _si, sid, px, py in placements) + margin
         clock.report(1.0, "done")
-        sheets = [[(part_items[p], sid, px, py) for p, _si, sid, px, py in placements]]
-        unplaced = [part_items[p] for p in unplaced_parts]
+        sheets = [expand(lib, [(part_items[p], sid, px, py) for p, _si, sid, px, py in placements])]
+        unplaced = [real for p in unplaced_parts for real in lib.parts_of(part_items[p])]
         return _result(items, lib, sheets, unplaced, (length, sheet_h), margin, spacing, length, 1, 1,
                        _stopped_by(clock, [stage], [stage_clock]), work.units)
 

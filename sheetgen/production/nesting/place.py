@@ -114,6 +114,62 @@ class ShapeLibrary:
         self._hulls: list[float] | None = None
         self.nfp_computed = 0
         self.work: Work | None = None  # charged for the no-fit polygons computed
+        # pairs (:mod:`~sheetgen.production.nesting.pairs`): composite shape id -> (real item, ((shape id, dx, dy),
+        # ...) grid offsets of its parts), and real item -> its pair item (None: no pair worth offering)
+        self.composites: dict[int, tuple[int, tuple[tuple[int, int, int], ...]]] = {}
+        self.pair_items: dict[int, int | None] = {}
+        self.composite_items: set[int] = set()   # the pair items
+        self._next_canon = len(canon_of)
+        self._composite_keys: dict[tuple, int] = {}
+
+    def add_composite(self, item: int, parts: tuple[tuple[int, int, int], ...]) -> int | None:
+        """A shape made of shapes of ``item`` at grid offsets ``parts``
+        ((shape id, dx, dy), each offset of its reference point from the
+        composite's lower-left corner): its clearance outline is the union of
+        theirs, so it keeps their windows; area and box are the parts'. Returns
+        its shape id (the same id for a geometry registered before), or None
+        when the outlines do not join into one polygon."""
+        outs = []
+        for sid, dx, dy in parts:
+            shift = np.array([dx, dy], dtype=float) / self.scale
+            outs.append(shapely.transform(self._outline[self.shapes[sid].canon], _shifted(shift)))
+        outline = shapely.union_all(outs)
+        if not isinstance(outline, Polygon):
+            return None
+        key = _shape_key(outline)
+        hit = self._composite_keys.get(key)
+        if hit is not None:
+            return hit
+        width = max(dx / self.scale + self.shapes[sid].width for sid, dx, _dy in parts)
+        height = max(dy / self.scale + self.shapes[sid].height for sid, _dx, dy in parts)
+        canon = self._next_canon
+        self._next_canon += 1
+        first = self.shapes[parts[0][0]]
+        # the polygon of a composite is its clearance outline (one polygon, holding the parts' windows);
+        # its area is the parts' own
+        self.shapes.append(Shape(outline, first.angle_deg, first.offset, width, height,
+                                 sum(self.shapes[sid].area for sid, _dx, _dy in parts), canon))
+        sid_new = len(self.shapes) - 1
+        self._canon_rep[canon] = sid_new
+        self._outline[canon] = outline
+        self._obox[canon] = tuple(v * self.scale for v in outline.bounds)
+        self.composites[sid_new] = (item, tuple(parts))
+        self._composite_keys[key] = sid_new
+        return sid_new
+
+    def parts_of(self, item: int) -> list[int]:
+        """The real items an item stands for: itself, or a pair item's two copies."""
+        if item not in self.composite_items:
+            return [item]
+        real, parts = self.composites[self.item_shapes[item][0]]
+        return [real] * len(parts)
+
+    def add_item(self, shape_ids: tuple[int, ...]) -> int:
+        """One more item made of the given (composite) shapes; returns its index."""
+        self.item_shapes.append(tuple(shape_ids))
+        self._hulls = None
+        self.composite_items.add(len(self.item_shapes) - 1)
+        return len(self.item_shapes) - 1
 
     def hull_areas(self) -> list[float]:
         """Per item, the area of its outline's convex hull (computed once)."""
@@ -145,10 +201,18 @@ class ShapeLibrary:
             a = self._outline[key[0]]
             b = self._outline[key[1]]
             paths, quads = fast_nfp_paths(a, b, self.scale)
+            # closed first (grown, then shrunk as much again): a sum of edge sweeps may keep a crack
+            # of no width where the sweeps of two parallel edges only touch, and the crack, widened
+            # by the shrink below, would be a free place with one part inside the other. Slots and
+            # holes narrower than 2 eps go with it (fits tighter than 1e-10 of the working size)
             off = pyclipper.PyclipperOffset()
             off.MiterLimit = 5.0
             off.AddPaths(paths, pyclipper.JT_MITER, pyclipper.ET_CLOSEDPOLYGON)
-            paths = off.Execute(-self.eps_units)
+            paths = off.Execute(self.eps_units)
+            off = pyclipper.PyclipperOffset()
+            off.MiterLimit = 5.0
+            off.AddPaths(paths, pyclipper.JT_MITER, pyclipper.ET_CLOSEDPOLYGON)
+            paths = off.Execute(-2 * self.eps_units)
             cuts, k = [], 0
             for p in paths:
                 cuts.append((k, k + len(p)))
@@ -165,6 +229,13 @@ class ShapeLibrary:
             if self.work is not None:
                 self.work.add(NFP_UNITS * quads)
         return hit
+
+
+def _shifted(shift: np.ndarray):
+    """A coordinate transform adding ``shift`` (for shapely.transform)."""
+    def move(xy: np.ndarray) -> np.ndarray:
+        return xy + shift
+    return move
 
 
 class Work:
