@@ -3,6 +3,7 @@ and the tally of refused property-test draws around every test call."""
 
 from __future__ import annotations
 
+import functools
 import json
 from pathlib import Path
 
@@ -72,18 +73,29 @@ def pytest_runtest_call(item):
     return result
 
 
-@pytest.fixture(scope="session")
-def demo_spec():
+@functools.lru_cache(maxsize=None)
+def _shipped(path: Path) -> tuple:
+    from sheetgen.design.kit import build_kit
     from sheetgen.design.spec import load_spec
 
-    return load_spec(DEMO)
+    spec = load_spec(path)
+    return spec, build_kit(spec)
+
+
+def shipped(path) -> tuple:
+    """(spec, kit) of a parameter file as shipped (no overrides), built once per test process and
+    shared by every test that reads it: both are frozen, so a test cannot change them."""
+    return _shipped(Path(path).resolve())
+
+
+@pytest.fixture(scope="session")
+def demo_spec():
+    return shipped(DEMO)[0]
 
 
 @pytest.fixture(scope="session")
 def demo_kit(demo_spec):
-    from sheetgen.design.kit import build_kit
-
-    return build_kit(demo_spec)
+    return shipped(DEMO)[1]
 
 
 @pytest.fixture(scope="session")

@@ -44,7 +44,7 @@ from sheetgen.design.kit import build_kit, frame_sweep
 from sheetgen.mechanics.solar import tracking_range
 from sheetgen.design.spec import load_spec
 from tests import _refs as R
-from tests.conftest import DEMO, PARAMS, ROOT
+from tests.conftest import DEMO, PARAMS, ROOT, shipped
 
 VARIANTS = sorted(PARAMS.glob("*.toml"))
 WRONG = ["axle.height=60", "drive.pinion_angle=60"]
@@ -61,8 +61,7 @@ def kits():
     """spec, kit, model and report of every shipped parameter file, built once."""
     out = {}
     for path in VARIANTS:
-        spec = load_spec(path)
-        kit = build_kit(spec)
+        spec, kit = shipped(path)
         model, report = _assembled(spec, kit)
         out[path.name] = (spec, kit, model, report)
     return out

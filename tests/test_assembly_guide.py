@@ -26,7 +26,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from tests import _refs as R
-from tests.conftest import DEMO, PARAMS
+from tests.conftest import DEMO, PARAMS, shipped
 from tests._browser import screenshot
 
 INSET_MM = 0.05
@@ -170,11 +170,8 @@ def test_the_checker_sees_a_tilted_plate_blocked():
 
 @pytest.mark.parametrize("params", sorted(p.name for p in PARAMS.glob("*.toml")))
 def test_every_item_reaches_its_place_in_the_guides_order(params):
-    from sheetgen.design.kit import build_kit
-    from sheetgen.design.spec import load_spec
-
-    spec = load_spec(PARAMS / params)
-    moves = _check_order(build_kit(spec), spec)
+    spec, kit = shipped(PARAMS / params)
+    moves = _check_order(kit, spec)
     assert len(moves) >= 10
 
 

@@ -18,7 +18,7 @@ import pytest
 from sheetgen.design.hardware import hardware_items
 from sheetgen.design.kit import build_kit
 from sheetgen.design.spec import load_spec
-from tests.conftest import PARAMS
+from tests.conftest import PARAMS, shipped
 
 CASES = sorted(str(p) for p in PARAMS.glob("*.toml"))
 ISO_7089_H = {3.0: 0.5, 4.0: 0.8, 5.0: 1.0}  # ISO 7089 washer thickness h, mm (from memory)
@@ -49,8 +49,7 @@ def _bar_screw_hole(kit):
 
 @pytest.mark.parametrize("params", CASES, ids=lambda p: p.split("/")[-1])
 def test_the_bar_screw_goes_into_the_tapped_end_without_a_nut(params):
-    spec = load_spec(params, [])
-    kit = build_kit(spec)
+    spec, kit = shipped(params)
     if not any(c.name == "counterweight" for c in kit.components):
         pytest.skip("this kit carries no counterweight")
     holes, bar_length = _bar_screw_hole(kit)

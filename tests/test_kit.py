@@ -9,7 +9,7 @@ from hypothesis import strategies as st
 from sheetgen.errors import ParameterError
 from sheetgen.design.kit import build_kit, frame_sweep, travel_deg
 from sheetgen.design.spec import load_spec
-from tests.conftest import DEMO, PARAMS
+from tests.conftest import DEMO, PARAMS, shipped
 
 FRAME = {"tray", "rim", "bezel"}
 
@@ -72,8 +72,7 @@ def test_with_the_drive_at_auto_a_larger_panel_gets_a_larger_ratio(demo_spec):
 
 @pytest.mark.parametrize("path", sorted(PARAMS.glob("*.toml")), ids=lambda p: p.name)
 def test_shipped_kits_clear_the_base_through_their_travel(path):
-    spec = load_spec(path)
-    kit = build_kit(spec)
+    spec, kit = shipped(path)
     assert frame_sweep(kit, travel_deg(spec)).min_clearance_mm >= spec.frame.clearance_mm
 
 

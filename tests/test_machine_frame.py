@@ -21,7 +21,7 @@ from sheetgen.design.kit import build_kit
 from sheetgen.design.spec import load_spec
 from sheetgen.model3d.bodies import CONTACT_TOL_MM, SHARED_VOLUME_TOL_MM3, model_bodies
 from tests import _refs
-from tests.conftest import DEMO as _DEMO, PARAMS
+from tests.conftest import DEMO as _DEMO, PARAMS, shipped
 
 DEMO = str(_DEMO)
 SHIPPED = sorted(str(p) for p in PARAMS.glob("*.toml") if p.name != "demo.toml")
@@ -31,8 +31,9 @@ THICKNESSES = (1.5, 2.0, 2.5, 3.0, 3.1, 3.3, 4.0, 4.5, 6.0, 7.0, 8.0)
 
 @functools.lru_cache(maxsize=None)
 def _kit(path: str, panel_thickness: float | None = None):
-    sets = [f"panel.thickness={panel_thickness}"] if panel_thickness is not None else []
-    spec = load_spec(path, sets)
+    if panel_thickness is None:
+        return shipped(path)
+    spec = load_spec(path, [f"panel.thickness={panel_thickness}"])
     return spec, build_kit(spec)
 
 

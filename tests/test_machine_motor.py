@@ -29,6 +29,7 @@ from sheetgen.design.kit import build_kit
 from sheetgen.design.spec import load_spec
 from sheetgen.errors import ParameterError
 from tests import _refs as R
+from tests.conftest import shipped
 
 ROOT = Path(__file__).resolve().parents[1]
 DEMO = ROOT / "params" / "demo.toml"
@@ -195,8 +196,7 @@ def _assert_braced(kit):
 
 @pytest.mark.parametrize("path", VARIANTS, ids=[p.stem for p in VARIANTS])
 def test_each_variant_holds_and_clears_its_motor(path):
-    spec = load_spec(path)
-    kit = build_kit(spec)
+    spec, kit = shipped(path)
     _assert_motor_clear_and_held(spec, kit)
     _assert_braced(kit)
 

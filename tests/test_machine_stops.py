@@ -21,6 +21,7 @@ from shapely import affinity
 from shapely.geometry import LineString
 
 from tests._refs import kept, refused
+from tests.conftest import shipped
 
 ROOT = Path(__file__).resolve().parents[1]
 VARIANTS = sorted((ROOT / "params").glob("*.toml"))
@@ -102,8 +103,8 @@ def _check_stops_meet_at_the_limit(spec, kit):
 
 @pytest.mark.parametrize("path", VARIANTS, ids=lambda p: p.stem)
 def test_each_variant_stops_at_the_travel_limit(path):
-    spec = _load(path)
-    _check_stops_meet_at_the_limit(spec, _kit(spec))
+    spec, kit = shipped(path)
+    _check_stops_meet_at_the_limit(spec, kit)
 
 
 def test_the_demo_model_reports_its_stops(demo_build_3):
@@ -136,8 +137,7 @@ def _contact(kit, spec):
 def test_stall_and_stop_bearing_against_hand_figures(path):
     from sheetgen.mechanics.check import balance_check
 
-    spec = _load(path)
-    kit = _kit(spec)
+    spec, kit = shipped(path)
     report = balance_check(kit, spec)
     d, mo = spec.drive, spec.motor
     # Lewis (Shigley eq. 14-2): the stalled motor's torque at the pinion's pitch circle
