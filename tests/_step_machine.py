@@ -106,18 +106,24 @@ def solid_distance(a, b) -> float:
     point-set topology, common practice). So one vertex of each shell, classified against the
     other solid (BRepClass3d_SolidClassifier), decides."""
     d = distance(_boundary(a), _boundary(b))
-    if d > 0.0 and bbox_gap(bbox(a), bbox(b)) == 0.0 and (_shell_inside(a, b) or _shell_inside(b, a)):
-        return 0.0
-    return d
+    return 0.0 if d > 0.0 and _nested(a, b) else d
+
+
+def _nested(a, b, b_classifiers=None) -> bool:
+    """For two solids whose boundaries are apart: whether one lies inside the other (see
+    :func:`solid_distance`). ``b_classifiers``: :func:`_classifiers` of ``b``, when the caller
+    keeps them."""
+    return bbox_gap(bbox(a), bbox(b)) == 0.0 and (_shell_inside(a, b, b_classifiers) or _shell_inside(b, a))
 
 
 def _shell_inside(a, b, classifiers=None) -> bool:
     """Whether a vertex of some shell of ``a`` lies strictly inside a solid of ``b``
-    (``classifiers``: :func:`classifiers` of ``b``, when the caller keeps them)."""
+    (``classifiers``: :func:`_classifiers` of ``b``, when the caller keeps them)."""
     from OCP.TopAbs import TopAbs_IN
 
+    points = _shell_points(a)
     for c in classifiers if classifiers is not None else _classifiers(b):
-        for p in _shell_points(a):
+        for p in points:
             c.Perform(p, 1e-7)
             if c.State() == TopAbs_IN:
                 return True
@@ -362,10 +368,10 @@ def _motor_clearance_within(solids, axis: Axis, angles_deg, exempt, r_mm: float)
                 d = distance(_boundary(m), cq.Compound.makeCompound(near))
             else:
                 d = distance(_boundary(m), _boundary(s.shape))
-            if d > 0.0 and bbox_gap(bbox(m), bbox(s.shape)) == 0.0:
+            if d > 0.0 and bbox_gap(bbox(m), bbox(s.shape)) == 0.0:  # classifiers only where they may be asked
                 if s.name not in inside:
                     inside[s.name] = _classifiers(s.shape)
-                if _shell_inside(m, s.shape, inside[s.name]) or _shell_inside(s.shape, m):
+                if _nested(m, s.shape, inside[s.name]):
                     d = 0.0
             if d < best[0]:
                 best = (d, s.name, float(a))
