@@ -30,6 +30,19 @@ def _read_back(result, items):
     assert sorted(seen) == sorted((i, c) for i, it in enumerate(items) for c in range(it.qty))
 
 
+def _squares_in_batches(monkeypatch, batch_parts: int, qty_a: int, qty_b: int):
+    """10 mm squares of two kinds (``qty_a`` and ``qty_b``), spacing 0, nested on 25 x 25 mm
+    sheets in batches of ``batch_parts`` parts; the layout verified and read back."""
+    from sheetgen.production.nesting import batches
+
+    monkeypatch.setattr(batches, "BATCH_PARTS", batch_parts)
+    items = [NestItem("a", box(0, 0, 10, 10), qty_a, (0.0,)), NestItem("b", box(0, 0, 10, 10), qty_b, (0.0,))]
+    result = nest(items, sheet_mm=(25, 25), effort=1, time_limit_s=CEILING_S)
+    verify(result, items)
+    _read_back(result, items)
+    return result
+
+
 def test_a_poorly_filled_last_sheet_of_a_batch_is_not_repeated(monkeypatch):
     # Hand count: 10 mm squares, spacing 0, on a 25 x 25 mm sheet: 2 x 2 fit
     # and no more (3 x 10 = 30 > 25 along either side), so 20 squares need
@@ -38,13 +51,7 @@ def test_a_poorly_filled_last_sheet_of_a_batch_is_not_repeated(monkeypatch):
     # would cut a sheet holding a single square with every repeat. The batch's
     # last sheet holds a quarter of what the first holds, so only the full sheet
     # is repeated and the single squares left over are nested together: 5 sheets.
-    from sheetgen.production.nesting import batches
-
-    monkeypatch.setattr(batches, "BATCH_PARTS", 5)
-    items = [NestItem("a", box(0, 0, 10, 10), 12, (0.0,)), NestItem("b", box(0, 0, 10, 10), 8, (0.0,))]
-    result = nest(items, sheet_mm=(25, 25), effort=1, time_limit_s=CEILING_S)
-    verify(result, items)
-    _read_back(result, items)
+    result = _squares_in_batches(monkeypatch, 5, 12, 8)
     assert len(result.sheets) == 5
     assert all(len(s) == 4 for s in result.sheets)
     assert max(len(g) for g in sheet_patterns(result)) >= 4  # the full sheet is the repeated pattern
@@ -54,13 +61,7 @@ def test_a_well_filled_batch_is_repeated_whole(monkeypatch):
     # Hand count: the same squares, kits of 2 + 2 (4 parts, one sheet of 2 x 2),
     # batches of 8 parts (2 kits, 2 full sheets): 6 kits = 24 squares = 6 full
     # sheets, every one of them cut from the batch's patterns.
-    from sheetgen.production.nesting import batches
-
-    monkeypatch.setattr(batches, "BATCH_PARTS", 8)
-    items = [NestItem("a", box(0, 0, 10, 10), 12, (0.0,)), NestItem("b", box(0, 0, 10, 10), 12, (0.0,))]
-    result = nest(items, sheet_mm=(25, 25), effort=1, time_limit_s=CEILING_S)
-    verify(result, items)
-    _read_back(result, items)
+    result = _squares_in_batches(monkeypatch, 8, 12, 12)
     assert len(result.sheets) == 6 and all(len(s) == 4 for s in result.sheets)
 
 
