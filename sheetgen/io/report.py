@@ -66,7 +66,8 @@ def _sheets(build) -> list[str]:
            f"<p>{s['sheets']} sheet{'s' if s['sheets'] != 1 else ''} from {len(groups)} distinct "
            f"pattern{'s' if len(groups) != 1 else ''}; no layout can use fewer than {bound} "
            f"(lower bound: part areas grown by half the spacing against the usable sheet, windows counted "
-           f"only as far as parts fit them, parts that cannot share a sheet counted)"
+           f"only as far as parts fit them and at most one of the large parts that cannot share a "
+           f"window in each, parts that cannot share a sheet counted)"
            + (", so this run is at the bound." if s["sheets"] <= bound else
               f": {s['sheets'] - bound} above it.")
            + f" The layout search ended by {escape(s['stopped_by'].replace('_', ' '))}.</p>",
