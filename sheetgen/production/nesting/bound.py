@@ -219,16 +219,12 @@ def _padded(pieces: list[np.ndarray]) -> np.ndarray:
     return np.stack([np.vstack([p, np.repeat(p[-1:], k - len(p), axis=0)]) for p in pieces])
 
 
-def _window_fill(items, grown: Sequence[Polygon], sizes, windows, filled: Sequence[float]) -> float:
+def _window_fill(items, grown: Sequence[Polygon], windows, filled: Sequence[float]) -> float:
     """The most filled outline area that the windows (``windows``: (part index, hole polygon,
-    hole width, hole height)) can hold, from above (module doc)."""
+    hole width, hole height, the parts whose grown box fits the hole's)) can hold, from above
+    (module doc)."""
     angles = [tuple(it.rotations_deg) for it in items]
     inner = _Inner(grown, angles)
-
-    def fits(j: int, w: float, h: float) -> bool:
-        return any(bw <= w + FIT_TOL_MM and bh <= h + FIT_TOL_MM for bw, bh, _ in sizes[j])
-
-    fitting = [[j for j in range(len(items)) if fits(j, ww, wh)] for _i, _hole, ww, wh in windows]
     quarter = [all((a + 90.0) % 360.0 in {x % 360.0 for x in angles[j]} for a in angles[j]) for j in range(len(items))]
     shape_key = [(grown[j].wkb, tuple(a % 360.0 for a in angles[j])) for j in range(len(items))]
 
@@ -246,7 +242,7 @@ def _window_fill(items, grown: Sequence[Polygon], sizes, windows, filled: Sequen
 
     # per window: the largest parts first, kept while each excludes itself and those kept
     alone_in: list[set[int]] = []
-    for (_i, _hole, ww, wh), cands in zip(windows, fitting):
+    for _i, _hole, ww, wh, cands in windows:
         kept: list[int] = []
         for j in sorted(cands, key=lambda j: (-filled[j], j)):
             if items[j].qty > 1 and not exclusive(j, j, ww, wh):
@@ -254,13 +250,13 @@ def _window_fill(items, grown: Sequence[Polygon], sizes, windows, filled: Sequen
             if all(exclusive(j, k, ww, wh) for k in kept):
                 kept.append(j)
         alone_in.append(set(kept))
-    in_any = {j for cands in fitting for j in cands}
+    in_any = {j for *_w, cands in windows for j in cands}
     # alone: in the kept set of every window it fits (so every window holds at most one of them)
-    alone = {j for j in in_any if all(j in kept for kept, cands in zip(alone_in, fitting) if j in cands)}
+    alone = {j for j in in_any if all(j in kept for kept, (*_w, cands) in zip(alone_in, windows) if j in cands)}
     free = sum(filled[j] * items[j].qty for j in in_any - alone)
     # each copy of a window: at most one alone part, at most the largest that fits it
     slots = []
-    for (i, hole, _ww, _wh), cands in zip(windows, fitting):
+    for i, hole, _ww, _wh, cands in windows:
         best = max((filled[j] for j in cands if j in alone), default=0.0)
         slots += [min(best, hole.area)] * items[i].qty
     copies = sorted((filled[j] for j in alone for _ in range(items[j].qty)), reverse=True)
@@ -291,16 +287,17 @@ def lower_bound_sheets(items, sheet_mm: tuple[float, float], margin_mm: float, s
         for ring in g.interiors:
             x0, y0, x1, y1 = ring.bounds
             hole = Polygon(ring)
-            if any(any(bw <= x1 - x0 + FIT_TOL_MM and bh <= y1 - y0 + FIT_TOL_MM for bw, bh, _ in sz)
-                   for sz in grown_sizes):
-                windows.append((i, hole, x1 - x0, y1 - y0))
+            fit = [j for j, sz in enumerate(grown_sizes)
+                   if any(bw <= x1 - x0 + FIT_TOL_MM and bh <= y1 - y0 + FIT_TOL_MM for bw, bh, _ in sz)]
+            if fit:
+                windows.append((i, hole, x1 - x0, y1 - y0, fit))
                 window_area += hole.area * it.qty
             else:
                 claim += hole.area
         claims.append(claim)
         filled.append(Polygon(g.exterior).area)
     total = sum(c * it.qty for c, it in zip(claims, items))
-    held = _window_fill(items, grown, grown_sizes, windows, filled) if windows else 0.0
+    held = _window_fill(items, grown, windows, filled) if windows else 0.0
     empty_windows = max(0.0, window_area - held)
     by_area = math.ceil((total + empty_windows) / area - 1e-9)
     big_claims = sum(it.qty for c, it in zip(claims, items) if c > area / 2)
