@@ -45,7 +45,7 @@ class SweepResult:
 
 
 def _corners(part: Part) -> np.ndarray:
-    xy = np.asarray(part.outline.exterior.coords[:-1], dtype=float)
+    xy = shapely.get_coordinates(part.outline.exterior)[:-1]
     return np.vstack([np.column_stack([xy, np.zeros(len(xy))]),
                       np.column_stack([xy, np.full(len(xy), part.thickness_mm)])])
 
@@ -62,7 +62,7 @@ def silhouette(part: Part, placement: Placement, index: int) -> Silhouette:
         shape = affinity.affine_transform(part.outline, a)
     else:
         # both faces are among the points, so the hull has an area (the part has a thickness)
-        shape = one_polygon(MultiPoint([tuple(p) for p in kit_pts[:, 1:]]).convex_hull, f"{part.name} silhouette")
+        shape = one_polygon(MultiPoint(kit_pts[:, 1:]).convex_hull, f"{part.name} silhouette")
     return Silhouette(f"{part.name}#{index + 1}", shape, x_range, placement.rotating)
 
 

@@ -11,6 +11,7 @@ motor, rotating masses) are added.
 from __future__ import annotations
 
 import dataclasses
+import functools
 import math
 
 import shapely
@@ -20,7 +21,7 @@ from shapely.ops import polylabel, unary_union
 from sheetgen.errors import GeometryBug, ParameterError, SheetTooSmall
 from sheetgen.geometry.joints import TabMissesSlot, fit_slot, slot_footprint, tab_layout, tab_rects
 from sheetgen.geometry.kerf import cut_outline
-from sheetgen.geometry.shapes import clean
+from sheetgen.geometry.shapes import clean, one_polygon
 from sheetgen.design.clearance import kit_silhouettes, sweep_clearance
 from sheetgen.design.layout import Layout, compute_layout
 from sheetgen.design.part import LAYER_LABEL, Component, Joint, Kit, Mark, Part
@@ -53,6 +54,7 @@ MOTOR_HOLDERS = frozenset({"motor-mount", "motor-clamp"})
 MOTOR_GAP_MM = 1.0  # our rule: the same least gap as SHAFT_END_GAP_MM and MOUNT_GAP_MM in layout.py
 LABEL_MAX_MM = 4.0
 LABEL_MIN_MM = 1.5
+LABELS_KEPT = 512  # labels kept per process (by outline); a kit has about 20 part outlines
 
 
 def build_kit(spec, *, check_clearance: bool = True, step_labels: bool | None = None) -> Kit:
@@ -177,7 +179,15 @@ def _joints(spec, blanks: dict[str, Blank]):
 def _label(name: str, outline: Polygon, step: str = "") -> tuple[Mark, ...]:
     """The part's engraved label at the point farthest inside it: its assembly step
     number(s) and name ("3 rib"), or the number alone where that does not fit at
-    LABEL_MIN_MM high; no label where nothing fits."""
+    LABEL_MIN_MM high; no label where nothing fits. The layout solver builds the kit many
+    times over, mostly with the same outlines, so labels are kept by the outline's exact
+    coordinates (its WKB): the same outline, the same label."""
+    return _label_of(name, outline.wkb, step)
+
+
+@functools.lru_cache(maxsize=LABELS_KEPT)
+def _label_of(name: str, wkb: bytes, step: str) -> tuple[Mark, ...]:
+    outline = one_polygon(shapely.from_wkb(wkb), f"{name}: label outline")
     p = polylabel(outline, tolerance=0.25)
     room = outline.boundary.distance(p)
     for text in ((f"{step} {name}", step) if step else (name,)):
