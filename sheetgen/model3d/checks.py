@@ -67,7 +67,7 @@ def _connection(model: Model, meas: _Measures, boxes, reach_mm: float) -> tuple[
     for i, j in sorted(cands, key=lambda p: not parallel(*p)):
         if find(i) == find(j):
             continue
-        if meas.distance_mm(bodies[i], bodies[j]) <= reach_mm:
+        if meas.within_mm(bodies[i], bodies[j], reach_mm):
             parent[find(i)] = find(j)
     groups: dict[int, list[int]] = {}
     for i in range(n):

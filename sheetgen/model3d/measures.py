@@ -61,6 +61,22 @@ class _Measures:
         return best
 
 
+    def within_mm(self, a: Body, b: Body, reach_mm: float) -> bool:
+        """Whether two bodies known not to share volume, as they stand, come within
+        ``reach_mm`` of each other: :meth:`distance_mm` <= reach_mm, measured only on the
+        parts of each that could hold such a pair (:func:`clipped_within_mm`)."""
+        for pa in a.pieces:
+            for pb in b.pieces:
+                d = parallel_distance_mm(pa, pb)
+                if d is None:
+                    self.occ_calls += 1
+                    if clipped_within_mm(pa, pb, reach_mm):
+                        return True
+                elif d <= reach_mm:
+                    return True
+        return False
+
+
 def _near_region(piece: Prism, other: Prism, reach_mm: float) -> BaseGeometry:
     """The part of ``piece``'s local x-y plane that can hold a point within
     ``reach_mm`` of ``other``: the box around ``other`` grown by the reach,
@@ -104,6 +120,17 @@ def clipped_distance_mm(a: Prism, b: Prism) -> float:
         else:
             reach = 2.0 * reach
     raise GeometryBug("the clipped distance did not settle")  # pragma: no cover - reach grows past both boxes
+
+
+def clipped_within_mm(a: Prism, b: Prism, reach_mm: float) -> bool:
+    """Whether two prisms that share no volume come within ``reach_mm`` of each other: every
+    point of ``a`` within the reach of ``b`` lies in ``b``'s box grown by the reach, and the
+    other way round (as in :func:`clipped_distance_mm`), so the answer is OpenCascade's distance
+    of the clipped pieces, and no when either clipped set is empty."""
+    if _box_gap_mm(a, b) > reach_mm:
+        return False
+    ca, cb = _clipped(a, _near_region(a, b, reach_mm)), _clipped(b, _near_region(b, a, reach_mm))
+    return bool(ca and cb) and _occ_distance(_shells(ca), _shells(cb)) <= reach_mm
 
 
 def _shells(prisms: list[Prism]):
