@@ -60,7 +60,6 @@ class _Measures:
                 best = min(best, d)
         return best
 
-
     def within_mm(self, a: Body, b: Body, reach_mm: float) -> bool:
         """Whether two bodies known not to share volume, as they stand, come within
         ``reach_mm`` of each other: :meth:`distance_mm` <= reach_mm, measured only on the

@@ -77,26 +77,34 @@ def _bbox_sizes(polygon: Polygon, angles: Sequence[float]) -> list[tuple[float, 
 
 
 class _Inner:
-    """Per part, angle and level: the grown outline turned, its box, and the triangles of an
-    inner approximation (every point at least ``margin`` inside the grown outline): the grown
-    outline shrunk by the level's inset, then simplified within the level's tolerance."""
+    """Per part and angle: the box of the grown outline turned; per level, too, the convex
+    pieces of an inner approximation (every point at least ``margin`` inside the grown
+    outline): the turned outline shrunk by the level's inset, then simplified within the
+    level's tolerance. Each is made when first asked for."""
 
     def __init__(self, grown: Sequence[Polygon], angles: Sequence[Sequence[float]]):
         self.grown = grown
         self.angles = angles
-        self._cache: dict[tuple[int, float, int], tuple[tuple[float, float, float, float], list[np.ndarray], float]] = {}
+        self._turned: dict[tuple[int, float], Polygon] = {}
+        self._pieces: dict[tuple[int, float, int], tuple[list[np.ndarray], float]] = {}
 
-    def get(self, i: int, angle: float, level: int) -> tuple[tuple[float, float, float, float], list[np.ndarray], float]:
+    def turned(self, i: int, angle: float) -> Polygon:
+        if (i, angle) not in self._turned:
+            self._turned[(i, angle)] = rotate_ccw(self.grown[i], angle)
+        return self._turned[(i, angle)]
+
+    def box(self, i: int, angle: float) -> tuple[float, float, float, float]:
+        return self.turned(i, angle).bounds
+
+    def pieces(self, i: int, angle: float, level: int) -> tuple[list[np.ndarray], float]:
         key = (i, angle, level)
-        if key not in self._cache:
-            turned = rotate_ccw(self.grown[i], angle)
+        if key not in self._pieces:
             inset, tol = LEVELS[level]
-            core = turned.buffer(-inset, quad_segs=8).simplify(tol)
-            tris = [] if core.is_empty else _triangles(core)
+            core = self.turned(i, angle).buffer(-inset, quad_segs=8).simplify(tol)
             # simplifying moves the outline by at most tol; the chords of the shrunk outline's arcs
             # cost well under 5 % of the inset
-            self._cache[key] = (turned.bounds, tris, 0.95 * (inset - tol))
-        return self._cache[key]
+            self._pieces[key] = ([] if core.is_empty else _triangles(core), 0.95 * (inset - tol))
+        return self._pieces[key]
 
 
 def _triangles(region) -> list[np.ndarray]:
@@ -163,8 +171,8 @@ def _exclusive(inner: _Inner, a: int, b: int, hole_w: float, hole_h: float) -> b
             if ((ra + 180.0) % 360.0, (rb + 180.0) % 360.0) in seen:
                 continue
             seen.add((ra % 360.0, rb % 360.0))
-            (ax0, ay0, ax1, ay1), _t, _m = inner.get(a, ra, 0)
-            (bx0, by0, bx1, by1), _t, _m = inner.get(b, rb, 0)
+            ax0, ay0, ax1, ay1 = inner.box(a, ra)
+            bx0, by0, bx1, by1 = inner.box(b, rb)
             aw, ah, bw, bh = ax1 - ax0, ay1 - ay0, bx1 - bx0, by1 - by0
             if aw > hole_w + FIT_TOL_MM or ah > hole_h + FIT_TOL_MM or bw > hole_w + FIT_TOL_MM \
                     or bh > hole_h + FIT_TOL_MM:
@@ -174,17 +182,17 @@ def _exclusive(inner: _Inner, a: int, b: int, hole_w: float, hole_h: float) -> b
             # a at p, b at q inside the box [0, hole_w] x [0, hole_h]: p in [-ax0, hole_w - ax1] (and y);
             # they overlap when q - p lies inside a (+) (-b), the no-fit polygon
             d = (-bx0 - (hole_w - ax1), -by0 - (hole_h - ay1), hole_w - bx1 + ax0, hole_h - by1 + ay0)
-            if not any(_covered(inner.get(a, ra, k), inner.get(b, rb, k), d) for k in range(len(LEVELS))):
+            if not any(_covered(inner.pieces(a, ra, k), inner.pieces(b, rb, k), d) for k in range(len(LEVELS))):
                 return False
     return True
 
 
 def _covered(a, b, d: tuple[float, float, float, float]) -> bool:
     """Whether every offset in the box ``d`` lies inside the no-fit polygon of the
-    approximations ``a`` and ``b`` ((box, triangles, margin) of :class:`_Inner`), the union of
-    the convex hulls of the sums of their triangles, with room to spare for the margins."""
-    _ba, ta, ma = a
-    _bb, tb, mb = b
+    approximations ``a`` and ``b`` ((convex pieces, margin) of :meth:`_Inner.pieces`), the union
+    of the convex hulls of the sums of their pieces, with room to spare for the margins."""
+    ta, ma = a
+    tb, mb = b
     if not len(ta) or not len(tb) or ma + mb <= 0.0:
         return False
     grow = (ma + mb) / 4
