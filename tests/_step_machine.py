@@ -10,6 +10,7 @@ principal axes. Nothing here reads the kit's prisms, its layout or its checks.
 
 from __future__ import annotations
 
+import functools
 import math
 from dataclasses import dataclass
 from pathlib import Path
@@ -39,6 +40,32 @@ class Solid:
     name: str
     group: str  # "fixed" or "rotating" (the STEP's sub-assembly)
     shape: Any  # cadquery Shape, placed
+
+    # What the checks ask of a solid again and again, measured once (a turned copy has the same
+    # faces, so it shares ``planar``).
+    @functools.cached_property
+    def planar(self) -> bool:
+        """Whether every face of the solid is flat."""
+        return all(f.geomType() == "PLANE" for f in self.shape.Faces())
+
+    @functools.cached_property
+    def box(self) -> tuple[np.ndarray, np.ndarray]:
+        return bbox(self.shape)
+
+    @functools.cached_property
+    def oriented(self):
+        return obb(self.shape, planar=self.planar)
+
+    @functools.cached_property
+    def volume_centre(self) -> tuple[float, np.ndarray]:
+        return volume_centre(self.shape)
+
+    @functools.cached_property
+    def face_boxes(self) -> tuple[list, np.ndarray, np.ndarray]:
+        """(faces, their boxes' low corners, their high corners): :func:`bbox` of each face."""
+        faces = self.shape.Faces()
+        boxes = [bbox(f) for f in faces]
+        return faces, np.array([b[0] for b in boxes]), np.array([b[1] for b in boxes])
 
 
 def read(path: str | Path) -> dict[str, Solid]:
@@ -107,6 +134,39 @@ def solid_distance(a, b) -> float:
     other solid (BRepClass3d_SolidClassifier), decides."""
     d = distance(_boundary(a), _boundary(b))
     return 0.0 if d > 0.0 and _nested(a, b) else d
+
+
+def touches(a: Solid, b: Solid, reach_mm: float = TOUCH_MM, quick: bool = False) -> bool:
+    """Whether :func:`solid_distance` of the two is below ``reach_mm`` (r), measured only where it can be.
+
+    Two faces closer than r lie each within r of the other solid's box (boxes are never small, see
+    :func:`bbox`), so the faces of each whose boxes come within r of the other's box are all the
+    boundary distance needs; when either has none, the boundaries are r or more apart and only one
+    solid inside the other makes them touch. First the edges of the side with fewer such faces
+    against the other's faces: a part of the boundaries, so a distance below r there is a touch,
+    found without OpenCascade's slow face-on-face case (a bolt's head lying on a plate's face is a
+    continuum of nearest points). With ``quick``, that first look alone: True is a touch, False
+    says nothing."""
+    import cadquery as cq
+
+    if bbox_gap(a.box, b.box) >= reach_mm:
+        return False
+    near = []
+    for s, other in ((a, b), (b, a)):
+        faces, lo, hi = s.face_boxes
+        olo, ohi = other.box
+        gap = np.linalg.norm(np.maximum(0.0, np.maximum(olo - hi, lo - ohi)), axis=1)
+        near.append([f for f, g in zip(faces, gap) if g < reach_mm])
+    if near[0] and near[1]:
+        few, many = sorted(near, key=len)
+        edges = cq.Compound.makeCompound([e for f in few for e in f.Edges()])
+        if distance(edges, cq.Compound.makeCompound(many)) < reach_mm:
+            return True
+        if quick:
+            return False
+        if distance(cq.Compound.makeCompound(near[0]), cq.Compound.makeCompound(near[1])) < reach_mm:
+            return True
+    return False if quick else _nested(a.shape, b.shape)
 
 
 def _nested(a, b, b_classifiers=None) -> bool:
@@ -188,15 +248,18 @@ def bbox_gap(a, b) -> float:
     return float(np.linalg.norm(np.maximum(0.0, np.maximum(blo - ahi, alo - bhi))))
 
 
-def obb(shape, grow_mm: float = 0.0):
+def obb(shape, grow_mm: float = 0.0, planar: bool | None = None):
     """An oriented box round the shape, grown by ``grow_mm`` along each of its axes (OpenCascade's
-    Bnd_OBB over the shape's vertices), or None when a face is curved. A plane-faced solid lies
+    Bnd_OBB over the shape's vertices), or None when a face is curved (``planar``: whether every
+    face is flat, when the caller knows it: :attr:`Solid.planar`). A plane-faced solid lies
     in the convex hull of its vertices, so the box holds it; grown by r, it holds every point
     within r of it (a prefilter only: boxes apart prove the solids at least r apart)."""
     from OCP.Bnd import Bnd_OBB
     from OCP.BRepBndLib import BRepBndLib
 
-    if any(f.geomType() != "PLANE" for f in shape.Faces()):
+    if planar is None:
+        planar = all(f.geomType() == "PLANE" for f in shape.Faces())
+    if not planar:
         return None
     box = Bnd_OBB()
     BRepBndLib.AddOBB_s(shape.wrapped, box, False, False, False)
@@ -290,7 +353,7 @@ def panel_gaps(solids: dict[str, Solid]) -> tuple[tuple[float, str], tuple[float
         best, who = math.inf, ""
         lo_hi = bbox(probe)
         for s in solids.values():
-            if s.name == "panel" or bbox_gap(lo_hi, bbox(s.shape)) > 1.0:
+            if s.name == "panel" or bbox_gap(lo_hi, s.box) > 1.0:
                 continue
             d = distance(probe, _boundary(s.shape))
             if d < best:
@@ -353,14 +416,14 @@ def _motor_clearance_within(solids, axis: Axis, angles_deg, exempt, r_mm: float)
     for s in solids.values():
         if s.name == "motor" or exempt(s.name):
             continue
-        whole = obb(s.shape)
+        whole = s.oriented
         for a in (angles_deg if s.group == "rotating" else [0.0]):
             m = turned(motor, axis, -float(a))  # the motor where the solid, turned by a, sees it
-            reach = obb(m, r_mm)
+            reach = obb(m, r_mm, planar=solids["motor"].planar)
             if boxes_apart(reach, whole):
                 continue
             if s.name not in faces:
-                faces[s.name] = [(f, obb(f)) for f in s.shape.Faces()] if whole is not None else []
+                faces[s.name] = [(f, obb(f, planar=True)) for f in s.shape.Faces()] if whole is not None else []
             if faces[s.name]:
                 near = [f for f, box in faces[s.name] if not boxes_apart(reach, box)]
                 if not near:
@@ -368,7 +431,7 @@ def _motor_clearance_within(solids, axis: Axis, angles_deg, exempt, r_mm: float)
                 d = distance(_boundary(m), cq.Compound.makeCompound(near))
             else:
                 d = distance(_boundary(m), _boundary(s.shape))
-            if d > 0.0 and bbox_gap(bbox(m), bbox(s.shape)) == 0.0:  # classifiers only where they may be asked
+            if d > 0.0 and bbox_gap(bbox(m), s.box) == 0.0:  # classifiers only where they may be asked
                 if s.name not in inside:
                     inside[s.name] = _classifiers(s.shape)
                 if _nested(m, s.shape, inside[s.name]):
@@ -381,7 +444,7 @@ def _motor_clearance_within(solids, axis: Axis, angles_deg, exempt, r_mm: float)
 def turning_clearance(solids: dict[str, Solid], axis: Axis, angles_deg, subject) -> tuple[float, str, str, float]:
     """(least distance, turning solid, fixed solid, frame angle) from the turning solids chosen by
     ``subject(name)`` to every fixed solid, at each of ``angles_deg`` (branch and bound on boxes)."""
-    fixed = [(s, bbox(s.shape)) for s in solids.values() if s.group == "fixed"]
+    fixed = [(s, s.box) for s in solids.values() if s.group == "fixed"]
     cands = []
     for r in solids.values():
         if r.group != "rotating" or not subject(r.name):
@@ -415,13 +478,13 @@ def overlaps(solids: dict[str, Solid], axis: Axis, angle_deg: float,
              skip: frozenset[str] = frozenset()) -> list[tuple[str, str, float]]:
     """(turning solid, fixed solid, shared mm3) for every pair sharing more than OVERLAP_TOL_MM3
     with the turning group turned by ``angle_deg`` about ``axis``."""
-    fixed = [(s, bbox(s.shape), obb(s.shape)) for s in solids.values() if s.group == "fixed" and s.name not in skip]
+    fixed = [(s, s.box, s.oriented) for s in solids.values() if s.group == "fixed" and s.name not in skip]
     out = []
     for r in solids.values():
         if r.group != "rotating" or r.name in skip:
             continue
         t = turned(r.shape, axis, angle_deg)
-        tb, to = bbox(t), obb(t)
+        tb, to = bbox(t), obb(t, planar=r.planar)
         for f, fb, fo in fixed:
             if meshing_or_bearing(r.name, f.name) or bbox_gap(tb, fb) > 0.0 or boxes_apart(to, fo):
                 continue
@@ -481,7 +544,7 @@ def counterweight_hardware(solids: dict[str, Solid]) -> tuple[str, ...]:
     cw = [s for n, s in solids.items() if n.startswith("counterweight")]
     out = [s.name for s in cw]
     for n, s in solids.items():
-        if n.startswith(("bolt#", "nut#")) and any(solid_distance(s.shape, c.shape) < TOUCH_MM for c in cw):
+        if n.startswith(("bolt#", "nut#")) and any(touches(s, c) for c in cw):
             out.append(n)
     return tuple(out)
 
@@ -510,7 +573,7 @@ def unbalance_Nm(solids: dict[str, Solid], axis: Axis, sheet_material: str, axle
     for s in solids.values():
         if s.group != "rotating" or s.name in leave_out:
             continue
-        vol, c = volume_centre(s.shape)
+        vol, c = s.volume_centre
         if s.name == "panel":
             m = panel_mass_kg
         elif s.name == "axle":
