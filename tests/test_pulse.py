@@ -52,7 +52,7 @@ DRIVE = Drive(MOTOR, 5.0, 0.85, 3.0e-4)
 def test_rc_discharge_closed_form():
     # v' = -v / (RC), v(0) = 5 V, R = 20 ohm, C = 4700 uF: v = 5 exp(-t / 0.094)
     rc = 20.0 * 4700e-6
-    sol = integrate(lambda t, y: -y / rc, [5.0], 0.3, rtol=1e-9, atol=1e-12, record=True)
+    sol = integrate(lambda t, y: (-y[0] / rc,), [5.0], 0.3, rtol=1e-9, atol=1e-12, record=True)
     ref = 5.0 * np.exp(-sol.ts / rc)
     np.testing.assert_allclose(sol.ys[:, 0], ref, rtol=1e-7, atol=1e-10)
     assert sol.t == pytest.approx(0.3)
@@ -61,7 +61,7 @@ def test_rc_discharge_closed_form():
 def test_rc_event_lands_on_one_time_constant():
     # v falls to V0 / e after exactly one time constant RC
     rc = 20.0 * 4700e-6
-    sol = integrate(lambda t, y: -y / rc, [5.0], 1.0, rtol=1e-10, atol=1e-13,
+    sol = integrate(lambda t, y: (-y[0] / rc,), [5.0], 1.0, rtol=1e-10, atol=1e-13,
                     events=(("tau", lambda t, y: y[0] - 5.0 / math.e),))
     assert sol.event == "tau"
     assert sol.t == pytest.approx(rc, rel=1e-8)

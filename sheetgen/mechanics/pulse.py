@@ -53,7 +53,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
-from typing import Callable
+from collections.abc import Callable, Sequence
 
 import numpy as np
 
@@ -92,49 +92,66 @@ class Solution:
     ys: np.ndarray | None = None
 
 
-_A_ROWS = tuple(np.array(a) for a in _A)
-_B5_ARR = np.array(_B5)
-_E_ARR = np.array(_E)
+(_A21,), (_A31, _A32), (_A41, _A42, _A43), (_A51, _A52, _A53, _A54), (_A61, _A62, _A63, _A64, _A65), \
+    (_A71, _A72, _A73, _A74, _A75, _A76) = _A[1:]
+_E1, _E2, _E3, _E4, _E5, _E6, _E7 = _E
 
 
-def _rk_step(f, t, y, h, k1):
-    ks = np.empty((7, y.size))
-    ks[0] = k1
-    for i in range(1, 7):
-        ks[i] = f(t + _C[i] * h, y + h * (_A_ROWS[i] @ ks[:i]))
-    y5 = y + h * (_B5_ARR @ ks)
-    err = h * (_E_ARR @ ks)
-    return y5, err, ks[6]  # FSAL: the last stage is f(t + h, y5)
+def _rk_step(f, t: float, y: tuple, h: float, k1) -> tuple[tuple, tuple, tuple]:
+    """One Dormand-Prince step of size h from (t, y), k1 = f(t, y): (y5, the error estimate,
+    f(t + h, y5)). The state is a handful of floats, so the stages are written out on plain
+    floats: numpy's cost per call would be most of the work."""
+    k2 = f(t + _C[1] * h, tuple(a + h * (_A21 * b) for a, b in zip(y, k1)))
+    k3 = f(t + _C[2] * h, tuple(a + h * (_A31 * b + _A32 * c) for a, b, c in zip(y, k1, k2)))
+    k4 = f(t + _C[3] * h, tuple(a + h * (_A41 * b + _A42 * c + _A43 * d) for a, b, c, d in zip(y, k1, k2, k3)))
+    k5 = f(t + _C[4] * h, tuple(a + h * (_A51 * b + _A52 * c + _A53 * d + _A54 * e)
+                                for a, b, c, d, e in zip(y, k1, k2, k3, k4)))
+    k6 = f(t + _C[5] * h, tuple(a + h * (_A61 * b + _A62 * c + _A63 * d + _A64 * e + _A65 * g)
+                                for a, b, c, d, e, g in zip(y, k1, k2, k3, k4, k5)))
+    # the last stage's state is y5 itself (its row of the tableau is _B5, whose second weight is 0)
+    y5 = tuple(a + h * (_A71 * b + _A73 * d + _A74 * e + _A75 * g + _A76 * q)
+               for a, b, d, e, g, q in zip(y, k1, k3, k4, k5, k6))
+    k7 = f(t + h, y5)
+    err = tuple(h * (_E1 * b + _E3 * d + _E4 * e + _E5 * g + _E6 * q + _E7 * r)
+                for b, d, e, g, q, r in zip(k1, k3, k4, k5, k6, k7))
+    return y5, err, k7
 
 
-def integrate(f: Callable[[float, np.ndarray], np.ndarray], y0, t_end: float, *, h0: float = 1e-4,
-              rtol: float = 1e-7, atol: float | np.ndarray = 1e-10, h_max: float = math.inf,
-              events: tuple[tuple[str, Callable[[float, np.ndarray], float]], ...] = (),
+def integrate(f: Callable[[float, tuple], Sequence[float]], y0, t_end: float, *, h0: float = 1e-4,
+              rtol: float = 1e-7, atol: float | Sequence[float] = 1e-10, h_max: float = math.inf,
+              events: tuple[tuple[str, Callable[[float, tuple], float]], ...] = (),
               event_tol: float = 1e-12, record: bool = False, max_steps: int = 10 ** 7) -> Solution:
     """Integrate y' = f(t, y) from t = 0 to ``t_end`` with error control.
 
-    ``events`` are (name, g) pairs; the run ends at the first step over which
+    ``f`` and the event functions get the state as a tuple of floats; ``f``
+    returns the derivative as a sequence of floats. ``events`` are (name, g)
+    pairs; the run ends at the first step over which
     some g(t, y) goes from positive to zero or below, located by bisection on
     the step size to ``event_tol`` seconds (the state is then the Runge-Kutta
     solution at that step, not an interpolation). After ``max_steps``
     accepted steps it gives up with the event "steps"."""
-    y = np.asarray(y0, dtype=float).copy()
+    y = tuple(float(v) for v in np.asarray(y0, dtype=float).ravel())
+    n = len(y)
     t = 0.0
     h = min(h0, h_max, t_end)
     k1 = f(t, y)
     steps = rejected = 0
     # the lists grow only with record=True; otherwise they keep the start and are dropped
     ts: list[float] = [0.0]
-    ys: list[np.ndarray] = [y.copy()]
-    atol = np.broadcast_to(np.asarray(atol, dtype=float), y.shape)
+    ys: list[tuple] = [y]
+    tol = tuple(float(v) for v in np.broadcast_to(np.asarray(atol, dtype=float), (n,)))
+
+    def done(t_end_s: float, y_end: tuple, event: str) -> Solution:
+        return Solution(t_end_s, np.array(y_end), event, steps, rejected,
+                        np.asarray(ts) if record else None, np.asarray(ys) if record else None)
+
     while t < t_end:
         if steps >= max_steps:
-            return Solution(t, y, "steps", steps, rejected,
-                            np.asarray(ts) if record else None, np.asarray(ys) if record else None)
+            return done(t, y, "steps")
         h = min(h, t_end - t, h_max)
         y_new, err, k_new = _rk_step(f, t, y, h, k1)
-        scale = atol + rtol * np.maximum(np.abs(y), np.abs(y_new))
-        e = float(np.sqrt(np.mean((err / scale) ** 2)))
+        e = math.sqrt(sum((d / (a + rtol * max(abs(u), abs(v)))) ** 2
+                          for d, a, u, v in zip(err, tol, y, y_new)) / n)
         if e > 1.0:
             rejected += 1
             h *= max(0.2, 0.9 * e ** -0.2)
@@ -159,18 +176,16 @@ def integrate(f: Callable[[float, np.ndarray], np.ndarray], y0, t_end: float, *,
             steps += 1
             if record:
                 ts.append(t)
-                ys.append(y_hi.copy())
-            return Solution(t, y_hi, name, steps, rejected,
-                            np.asarray(ts) if record else None, np.asarray(ys) if record else None)
+                ys.append(y_hi)
+            return done(t, y_hi, name)
         t += h
         y, k1 = y_new, k_new
         steps += 1
         if record:
             ts.append(t)
-            ys.append(y.copy())
+            ys.append(y)
         h *= min(5.0, max(0.2, 0.9 * (e if e > 0 else 1e-10) ** -0.2))
-    return Solution(t, y, "time", steps, rejected,
-                    np.asarray(ts) if record else None, np.asarray(ys) if record else None)
+    return done(t, y, "time")
 
 
 # ---------------------------------------------------------------------------
@@ -315,7 +330,7 @@ def run_pulse(drive: Drive, load: AxleLoad, capacitance_F: float, voltage_V: flo
         ta = drive.axle_torque_Nm(tm)
         acc = (ta + s * load.gravity_Nm(th0 + s * x) - tw - tf) / J
         mesh = tm * N * w - ta * w
-        return np.array((0.0 if steady else -i / C, w, acc, i * i * R, mesh))
+        return (0.0 if steady else -i / C, w, acc, i * i * R, mesh)
 
     if travel_deg <= 0.0:
         # already at the travel end it would run into
@@ -329,14 +344,14 @@ def run_pulse(drive: Drive, load: AxleLoad, capacitance_F: float, voltage_V: flo
 
     x_end = math.radians(travel_deg)
     # the stop event (w falling to 0) is armed after the start, where w = 0 and w' > 0
-    events: tuple[tuple[str, Callable[[float, np.ndarray], float]], ...] = (
+    events: tuple[tuple[str, Callable[[float, tuple], float]], ...] = (
         ("stopped", lambda _t, y: y[2] if _t > 0.0 else 1.0),)
     if math.isfinite(x_end):
         events += (("travel", lambda _t, y: x_end - y[1]),)
     # time scales for the first step: electrical-mechanical tau = J R / (k N)^2
     tau = J * R / (k * N) ** 2 if k * N > 0 else 1e-3
     y0 = (voltage_V, 0.0, 0.0, 0.0, 0.0)
-    atol = np.array((1e-9 * max(voltage_V, 1.0), 1e-10, 1e-9, 1e-12, 1e-12))
+    atol = (1e-9 * max(voltage_V, 1.0), 1e-10, 1e-9, 1e-12, 1e-12)
     sol = integrate(rhs, y0, max_time_s, h0=min(tau, 1e-3) * 1e-2, rtol=rtol, atol=atol, h_max=h_max,
                     events=events, record=record, max_steps=max_steps)
     v, x, w, cu, mesh = (float(a) for a in sol.y)
