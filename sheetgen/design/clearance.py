@@ -114,7 +114,10 @@ def sweep_clearance(silhouettes: list[Silhouette], angles_deg: tuple[float, floa
         def turned(yz: np.ndarray, turn: np.ndarray = turn) -> np.ndarray:
             return yz @ turn
 
-        moved = shapely.transform(turning_geoms, turned)[index[active]]
+        need = np.unique(index[active])  # only the turning shapes of the pairs still in play
+        turned_now = np.empty(len(turning_geoms), dtype=object)
+        turned_now[need] = shapely.transform(turning_geoms[need], turned)
+        moved = turned_now[index[active]]
         dist = shapely.distance(moved, fixed_geoms[active])
         j = int(np.argmin(dist))
         k = int(active[j])
