@@ -26,7 +26,8 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
-from shapely.geometry import MultiPoint, Polygon
+import shapely
+from shapely.geometry import Polygon
 
 from sheetgen.errors import GeometryBug, ParameterError
 from sheetgen.geometry.placement import Placement
@@ -116,7 +117,7 @@ def slot_footprint(tab: Polygon, tab_thickness_mm: float, tab_at: Placement, slo
     z = local[:, 2]
     if z.min() < -1e-6 or z.max() > slot_thickness_mm + 1e-6:
         raise TabMissesSlot(f"tab spans z {z.min():.3f}..{z.max():.3f} in the slot part, not 0..{slot_thickness_mm:g}")
-    footprint = MultiPoint([tuple(p) for p in np.round(local[:, :2], 9)]).convex_hull
+    footprint = shapely.convex_hull(shapely.multipoints(np.round(local[:, :2], 9)))
     if not isinstance(footprint, Polygon) or footprint.area <= 0:
         raise TabMissesSlot("tab has no footprint in the slot part (the parts do not cross)")
     return footprint
