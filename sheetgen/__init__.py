@@ -15,13 +15,15 @@ from __future__ import annotations
 
 from typing import Any
 
-__version__ = "0.1.0"
-
 __all__ = ["build", "build_kit", "check_balance", "load_params", "nest_kits", "plan_cuts", "write_build",
            "__version__"]
 
 
 def __getattr__(name: str) -> Any:
+    if name == "__version__":
+        from sheetgen.version import __version__
+
+        return __version__
     if name in __all__:
         from sheetgen import api
 

@@ -22,8 +22,8 @@ from typing import TYPE_CHECKING, Any
 
 if TYPE_CHECKING:
     from sheetgen.pipeline import BuildResult, NestRun
-    from sheetgen.design.part import Kit
-    from sheetgen.design.spec import Spec
+    from sheetgen.kitmodel.part import Kit
+    from sheetgen.design.schema import Spec
     from sheetgen.mechanics.balance_report import BalanceReport
     from sheetgen.production.cutplan import CutPlan
     from sheetgen.production.runs import PlacedSheet
@@ -110,7 +110,7 @@ def write_build(build: BuildResult, out_dir: str | Path, *, dxf_version: str = "
 
     >>> write_build(build(load_params(), model=False), "out")   # doctest: +SKIP
     """
-    from sheetgen.io.buildout import write_build as _write_build
+    from sheetgen.buildout import write_build as _write_build
 
     return _write_build(build, out_dir, dxf_version=dxf_version, into_existing=into_existing)
 

@@ -15,7 +15,7 @@ import importlib
 
 import click
 
-from sheetgen import __version__
+from sheetgen.version import __version__
 from sheetgen.errors import (
     GeometryBug,
     Interrupted,

@@ -2,7 +2,7 @@
 
 Spec -> kit -> balance check -> nested sheets -> cut plans -> figures, and,
 on request, the 3D model and its checks. No files here:
-:func:`sheetgen.io.buildout.write_build` writes what this returns.
+:func:`sheetgen.buildout.write_build` writes what this returns.
 """
 
 from __future__ import annotations
@@ -10,9 +10,9 @@ from __future__ import annotations
 from dataclasses import dataclass, replace
 from typing import TYPE_CHECKING, Any
 
-from sheetgen.design.part import Kit
+from sheetgen.kitmodel.part import Kit
 from sheetgen.errors import GeometryBug
-from sheetgen.design.spec import Spec
+from sheetgen.design.schema import Spec
 from sheetgen.drive.gears import GearPair
 from sheetgen.mechanics.balance_report import BalanceReport
 from sheetgen.production.cutplan import CutPlan

@@ -202,7 +202,7 @@ def test_a_frame_hitting_the_stand_is_caught_with_parts_and_angle(wrong):
     assert worst.worst_volume_mm3 > 1.0
     # every 3D collision overlaps in 2D at its worst angle, and is clear in 2D one step
     # nearer to rest than where the 3D sweep first finds it (2D clear implies 3D clear)
-    from sheetgen.design.clearance import kit_silhouettes, sweep_clearance
+    from sheetgen.kitmodel.clearance import kit_silhouettes, sweep_clearance
 
     sils = {s.name: s for s in kit_silhouettes(kit)}
     for c in collisions:

@@ -21,9 +21,10 @@ from shapely.geometry import Polygon, box
 
 from sheetgen.commands.coupon import command as coupon_command
 from sheetgen.commands.kerf import command as kerf_command
-from sheetgen.production.coupon import coupon_dxf_bytes, kerf_from_measurement, make_coupon, width_label
+from sheetgen.io.dxf import coupon_dxf_bytes
+from sheetgen.production.coupon import kerf_from_measurement, make_coupon, width_label
 from sheetgen.errors import ParameterError
-from sheetgen.production.preflight import preflight_file
+from sheetgen.io.dxf_read import preflight_file
 
 
 def test_kerf_from_a_caliper_reading():

@@ -333,7 +333,7 @@ def _write_with_lead_ins(plan: CutPlan, path) -> None:
 def test_lead_ins_written_as_proposed_measure_and_pass_preflight(tmp_path):
     from ezdxf.math import bulge_to_arc
 
-    from sheetgen.production.preflight import preflight_file
+    from sheetgen.io.dxf_read import preflight_file
 
     contours = _nested_sheet()
     settings = LaserSettings(cut_speed_mm_s=20.0, rapid_speed_mm_s=200.0, pierce_time_s=0.5, lead_in_mm=2.0)

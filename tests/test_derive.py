@@ -19,7 +19,8 @@ from sheetgen.errors import ParameterError
 from sheetgen.design.kit import build_kit, frame_sweep, travel_deg
 from sheetgen.mechanics.check import balance_check
 from sheetgen.design.solver import RULES, solve_with_figures, undercut_free_shift
-from sheetgen.design.spec import SCHEMA, load_spec
+from sheetgen.design.spec import load_spec
+from sheetgen.design.schema import SCHEMA
 from tests.conftest import DEMO, PARAMS
 from tests.derive_cases import MATERIALS, PANEL_DENSITY_KG_M3, RANGES, Draw, judge, suggestion
 
@@ -54,7 +55,7 @@ def test_every_derived_key_names_a_rule_and_every_rule_sets_derived_keys():
     for rule in RULES:
         assert all(derived[p].rule == rule.name for p in rule.sets)
     # nothing derivable is required
-    from sheetgen.design.spec import REQUIRED
+    from sheetgen.design.schema import REQUIRED
 
     assert all(k.default is not REQUIRED for k in derived.values())
 

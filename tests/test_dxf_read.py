@@ -21,7 +21,7 @@ from shapely.geometry import Point, Polygon, box
 from sheetgen.errors import InputFileError
 from sheetgen.io.dxf import write_cut_dxf
 from sheetgen.io.dxf_read import read_dxf_parts
-from sheetgen.design.part import LAYER_LABEL, Mark
+from sheetgen.kitmodel.part import LAYER_LABEL, Mark
 
 
 def _frame_with_round_holes():
@@ -135,7 +135,7 @@ def _contour_count(parts):
 
 
 def _both(path):
-    from sheetgen.production.preflight import preflight_file
+    from sheetgen.io.dxf_read import preflight_file
 
     return preflight_file(path), read_dxf_parts(path)
 
@@ -168,7 +168,7 @@ def test_a_gap_over_the_join_tolerance_is_open_for_both(tmp_path):
     msp.add_lwpolyline([(0, 0), (30, 0), (30, 20), (0, 20), (3 * JOIN_TOL_MM, 0)])
     path = tmp_path / "open.dxf"
     doc.saveas(path)
-    from sheetgen.production.preflight import preflight_file
+    from sheetgen.io.dxf_read import preflight_file
 
     report = preflight_file(path)
     assert "open-contour" in [f.kind for f in report.faults]

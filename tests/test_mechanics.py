@@ -25,7 +25,7 @@ from sheetgen.mechanics.balance_text import render_text
 from sheetgen.mechanics.check import balance_check
 from sheetgen.mechanics.load_geometry import wind_plate_footprint
 from sheetgen.mechanics.massprops import counterweight_at_arm, mass_properties, part_mass_each_kg
-from sheetgen.design.part import Component, Kit, Part
+from sheetgen.kitmodel.part import Component, Kit, Part
 from sheetgen.geometry.placement import place, rotation_x
 
 X, Y, Z = (1.0, 0.0, 0.0), (0.0, 1.0, 0.0), (0.0, 0.0, 1.0)
@@ -317,7 +317,7 @@ def _report(doc, overrides=()):
 
 def _bare(kit):
     """The kit without the counterweight it carries (bracket and bar)."""
-    from sheetgen.design.part import Kit
+    from sheetgen.kitmodel.part import Kit
 
     return Kit(tuple(p for p in kit.parts if p.name != "counterweight-bracket"),
                tuple(c for c in kit.components if c.name != "counterweight"))
@@ -353,7 +353,7 @@ def test_demo_counterweight_clears_the_fixed_parts():
     # keeps frame.clearance from every fixed part and lies opposite the bare frame's CG
     from shapely.geometry import Point
 
-    from sheetgen.design.clearance import Silhouette, kit_silhouettes, sweep_clearance
+    from sheetgen.kitmodel.clearance import Silhouette, kit_silhouettes, sweep_clearance
     from sheetgen.design.kit import build_kit
     from sheetgen.mechanics.massprops import mass_properties
 

@@ -27,7 +27,8 @@ from sheetgen.production.cutplan import LaserSettings, cut_plan_contours, plan_s
 from sheetgen.errors import InputFileError, ParameterError
 from sheetgen.geometry.contour import Contour
 from sheetgen.io.dxf import dxf_bytes
-from sheetgen.production.preflight import parse_sheet, preflight_file
+from sheetgen.io.dxf_read import preflight_file
+from sheetgen.commands.preflight import parse_sheet
 
 CUT = {"layer": "CUT"}
 

@@ -35,7 +35,7 @@ from shapely.geometry import Point, box
 from sheetgen.mechanics import drive as drv
 from sheetgen.mechanics.inertia import frame_inertia_kgm2, part_inertia_x_kgm2
 from sheetgen.mechanics.pulse import AxleLoad, Drive, Motor, integrate, run_pulse
-from sheetgen.design.part import Component, Kit, Part
+from sheetgen.kitmodel.part import Component, Kit, Part
 from sheetgen.geometry.placement import place
 
 G = 9.80665  # standard gravity (ISO 80000-3)

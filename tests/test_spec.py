@@ -10,7 +10,8 @@ import pytest
 
 from sheetgen.errors import InputFileError, ParameterError
 from sheetgen.design.schema_docs import reference_markdown
-from sheetgen.design.spec import SCHEMA, load_spec, parse_override, spec_from_dict
+from sheetgen.design.spec import load_spec, parse_override, spec_from_dict
+from sheetgen.design.schema import SCHEMA
 from tests.conftest import DEMO, PARAMS
 
 
@@ -228,7 +229,7 @@ def test_typed_sections_are_generated_from_the_schema():
 
     from sheetgen.design import sections
     from sheetgen.design.schema_docs import section_class_name, sections_source
-    from sheetgen.design.spec import SCHEMA, SECTIONS
+    from sheetgen.design.schema import SCHEMA, SECTIONS
 
     path = Path(sections.__file__)
     assert path.read_text(encoding="utf-8") == sections_source(), \

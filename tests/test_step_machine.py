@@ -26,7 +26,7 @@ from tests.conftest import PARAMS  # noqa: E402
 
 CASES = sorted(str(p) for p in PARAMS.glob("*.toml"))
 # The design's stated gap between the motor (body and spinning shaft) and every part but its holders:
-# MOTOR_GAP_MM = 1.0 in sheetgen/design/kit.py (our design rule), written here as a number.
+# MOTOR_GAP_MM = 1.0 in sheetgen/kitmodel/contacts.py (our design rule), written here as a number.
 MOTOR_GAP_MM = 1.0
 # The bare frame's CG this far off the axle or more gets a carried counterweight:
 # CW_THRESHOLD_MM = 0.5 in sheetgen/design/parts/counterweight.py (our design rule).

@@ -33,7 +33,7 @@ def command(params, kits, out_dir, dxf_version, model, overrides, into_existing,
     from sheetgen.pipeline import run_build, with_model
     from sheetgen.commands.nest import Progress
     from sheetgen.design.spec import demo_params_path, load_spec
-    from sheetgen.io.buildout import write_build
+    from sheetgen.buildout import write_build
     from sheetgen.io.output import check_output_dir
 
     start = time.perf_counter()

@@ -22,7 +22,8 @@ def command(thickness: float, square: float, output: str, dxf_version: str) -> N
     thickness, a tab to try in them, and a square to measure. It is drawn
     without kerf compensation; after cutting, measure the square and run
     `sheetgen kerf`."""
-    from sheetgen.production.coupon import coupon_dxf_bytes, make_coupon, width_label
+    from sheetgen.io.dxf import coupon_dxf_bytes
+    from sheetgen.production.coupon import make_coupon, width_label
     from sheetgen.io.output import check_output_file, staged_file
 
     check_output_file(output)  # refuse a bad target before any work

@@ -2,17 +2,32 @@
 
 from __future__ import annotations
 
+import math
+import re
+
 import click
 
 from sheetgen.errors import ParameterError
 
 
 def _kerf_range() -> tuple[float, float]:
-    from sheetgen.design.spec import SCHEMA_BY_PATH
+    from sheetgen.design.schema import SCHEMA_BY_PATH
 
     key = SCHEMA_BY_PATH["laser.kerf"]
     assert key.lo is not None and key.hi is not None  # the schema bounds this key on both sides
     return key.lo, key.hi
+
+
+def parse_sheet(text: str) -> tuple[float, float]:
+    """``WxH`` in mm, e.g. ``600x400``."""
+    parts = re.split(r"[xX*]", text.strip())
+    try:
+        w, h = (float(p) for p in parts)
+    except ValueError:
+        raise ParameterError(f"--sheet {text!r}: must be WIDTHxHEIGHT in mm, for example 600x400") from None
+    if not (0 < w <= 10000 and 0 < h <= 10000) or not (math.isfinite(w) and math.isfinite(h)):
+        raise ParameterError(f"--sheet {text!r}: width and height must be from 0 to 10000 mm (above 0)")
+    return (w, h)
 
 
 @click.command("preflight")
@@ -29,7 +44,7 @@ def command(file: str, sheet: str | None, kerf: float | None, layer: str | None)
     than the kerf can cut, missing units, nothing to cut, a byte-order mark.
     Exit code 1 when there is any, 0 when the file is clean; 2 when the file
     cannot be read or holds more than 250,000 entities (the ceiling)."""
-    from sheetgen.production.preflight import parse_sheet, preflight_file
+    from sheetgen.io.dxf_read import preflight_file
 
     sheet_mm = parse_sheet(sheet) if sheet is not None else None
     if kerf is not None:

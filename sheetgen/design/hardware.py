@@ -27,7 +27,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from sheetgen.design.part import Component, Kit
+from sheetgen.kitmodel.part import Component, Kit
 from sheetgen.errors import ParameterError
 from sheetgen.geometry.placement import vec3
 

@@ -22,9 +22,10 @@ from sheetgen.errors import GeometryBug, ParameterError, SheetTooSmall
 from sheetgen.geometry.joints import TabMissesSlot, fit_slot, slot_footprint, tab_layout, tab_rects
 from sheetgen.geometry.kerf import cut_outline
 from sheetgen.geometry.shapes import clean, one_polygon
-from sheetgen.design.clearance import kit_silhouettes, sweep_clearance
+from sheetgen.kitmodel.clearance import kit_silhouettes, sweep_clearance
+from sheetgen.kitmodel.contacts import MESHING, STOPS
 from sheetgen.design.layout import Layout, compute_layout
-from sheetgen.design.part import LAYER_LABEL, Component, Joint, Kit, Mark, Part
+from sheetgen.kitmodel.part import LAYER_LABEL, Component, Joint, Kit, Mark, Part
 from sheetgen.design.parts import Blank, part_families
 
 # (tab part, its edge, slot part): a tab-and-slot joint along that edge.
@@ -43,15 +44,6 @@ JOINTS = (
     ("wedge", "top", "base"),
     ("wedge", "bottom", "ground-plate"),
 )
-# Turning and fixed parts that are meant to touch.
-MESHING = frozenset({("wheel", "pinion")})
-# Turning and fixed parts meant to meet at the ends of the travel, and only there (the end stops:
-# sheetgen/design/parts/stops.py); the clearance sweeps leave them out and model3d.stops checks them.
-STOPS = frozenset({("stop-arm", "end-stop")})
-# The parts that hold the motor body (they may touch it); every other part keeps MOTOR_GAP_MM off the
-# motor and its shaft, and the spinning shaft touches nothing but the pinion (sheetgen.model3d checks it).
-MOTOR_HOLDERS = frozenset({"motor-mount", "motor-clamp"})
-MOTOR_GAP_MM = 1.0  # our rule: the same least gap as SHAFT_END_GAP_MM and MOUNT_GAP_MM in layout.py
 LABEL_MAX_MM = 4.0
 LABEL_MIN_MM = 1.5
 LABELS_KEPT = 512  # labels kept per process (by outline); a kit has about 20 part outlines

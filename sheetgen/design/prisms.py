@@ -9,7 +9,7 @@ from collections.abc import Mapping
 import shapely
 from shapely.geometry import Point, Polygon
 
-from sheetgen.design.part import Component, Kit
+from sheetgen.kitmodel.part import Component, Kit
 from sheetgen.errors import GeometryBug
 from sheetgen.geometry.placement import Placement, place
 from sheetgen.geometry.prism import AXIS_TOL, Prism, spun
@@ -69,7 +69,7 @@ def component_prisms(comp: Component, kit: Kit, shaft_length_mm: float | None = 
 
 def mesh_pairs(kit: Kit) -> list[tuple[str, str]]:
     """The (wheel, pinion) pairs of the kit that mesh."""
-    from sheetgen.design.kit import MESHING
+    from sheetgen.kitmodel.contacts import MESHING
 
     names = {p.name for p in kit.parts}
     return sorted((w, p) for w, p in MESHING if w in names and p in names)

@@ -5,7 +5,7 @@ keep both current."""
 
 from __future__ import annotations
 
-from sheetgen.design.spec import REQUIRED, SCHEMA, SECTIONS
+from sheetgen.design.schema import REQUIRED, SCHEMA, SECTIONS
 
 
 def section_class_name(section: str) -> str:
@@ -18,7 +18,7 @@ def sections_source() -> str:
     --sections`` prints it; a test keeps the module current)."""
     lines = ['"""Typed parameter sections, one frozen dataclass per section of the schema.',
              "",
-             "Generated from sheetgen.design.spec.SCHEMA by `python -m sheetgen.design.spec --sections`;",
+             "Generated from sheetgen.design.schema.SCHEMA by `python -m sheetgen.design.spec --sections`;",
              "tests/test_spec.py fails while this file differs from what the schema writes. Do not edit.",
              "A derived key holds the number the layout solver set (or the pinned one) once the",
              'spec is loaded; only inside the solver may it still read "auto".',

@@ -1,6 +1,6 @@
 """Typed parameter sections, one frozen dataclass per section of the schema.
 
-Generated from sheetgen.design.spec.SCHEMA by `python -m sheetgen.design.spec --sections`;
+Generated from sheetgen.design.schema.SCHEMA by `python -m sheetgen.design.spec --sections`;
 tests/test_spec.py fails while this file differs from what the schema writes. Do not edit.
 A derived key holds the number the layout solver set (or the pinned one) once the
 spec is loaded; only inside the solver may it still read "auto".

@@ -9,14 +9,20 @@ from __future__ import annotations
 import math
 from collections.abc import Iterable, Sequence
 from dataclasses import dataclass
-from typing import TYPE_CHECKING
 
 from shapely.geometry import Polygon
 
-if TYPE_CHECKING:
-    from sheetgen.design.part import Circle
-
 CIRCLE_MATCH_TOL_MM = 0.02
+
+
+@dataclass(frozen=True)
+class Circle:
+    """A round hole of the nominal outline, kept so writers can emit true circles
+    (:class:`sheetgen.kitmodel.part.Part` carries them; the writers turn them into contours)."""
+
+    x_mm: float
+    y_mm: float
+    radius_mm: float
 
 
 @dataclass(frozen=True)

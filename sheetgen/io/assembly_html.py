@@ -110,7 +110,7 @@ def assembly_guide_html(kit, spec) -> str:
     from pathlib import Path
 
     from sheetgen.design.assembly_order import assembly_steps, guide_items
-    from sheetgen.design.part import LAYER_LABEL
+    from sheetgen.kitmodel.part import LAYER_LABEL
     from sheetgen.model3d.stepview import describe_picture, step_pictures
 
     hardware = guide_items(kit, spec)  # the kit's hardware list, fitted step by step

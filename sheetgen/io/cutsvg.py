@@ -28,7 +28,7 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 from html import escape
 
-from sheetgen.design.part import LAYER_GUIDE, LAYER_LABEL, Mark
+from sheetgen.kitmodel.part import LAYER_GUIDE, LAYER_LABEL, Mark
 from sheetgen.geometry.contour import Contour
 
 
@@ -47,7 +47,7 @@ def style_from_spec(spec) -> CutSvgStyle:
 
 def default_style() -> CutSvgStyle:
     """The style the parameters give when they leave [svg] out (the schema's defaults)."""
-    from sheetgen.design.spec import SCHEMA_BY_PATH
+    from sheetgen.design.schema import SCHEMA_BY_PATH
 
     d = {k: SCHEMA_BY_PATH[f"svg.{k}"].default for k in ("cut_colour", "label_colour", "guide_colour", "stroke")}
     return CutSvgStyle(d["cut_colour"], d["label_colour"], d["guide_colour"], float(d["stroke"]))

@@ -13,12 +13,16 @@ import logging
 from collections.abc import Iterable, Sequence
 from contextlib import contextmanager
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 from shapely.geometry import Polygon
 
-from sheetgen.design.part import LAYER_CUT, LAYER_GUIDE, LAYER_LABEL, Mark
+from sheetgen.kitmodel.part import LAYER_CUT, LAYER_GUIDE, LAYER_LABEL, Mark
 from sheetgen.errors import GeometryBug
 from sheetgen.geometry.contour import Contour, polygon_contours
+
+if TYPE_CHECKING:
+    from sheetgen.production.coupon import Coupon
 
 DXF_VERSIONS = {"R12": "R12", "R2000": "R2000"}
 # Layer colours (ACI): cut white/black, labels green, guides grey. Our own choice.
@@ -149,3 +153,13 @@ def write_cut_dxf(path: str | Path, polygons: Sequence[Polygon], *, circles: Ite
     for poly in polygons:
         contours.extend(polygon_contours(poly, circles, circle_offset_mm))
     Path(path).write_bytes(dxf_bytes(contours, marks, dxf_version))
+
+
+def coupon_dxf_bytes(coupon: Coupon, dxf_version: str = "R2000") -> bytes:
+    """The kerf coupon (:func:`sheetgen.production.coupon.make_coupon`) as a
+    cut file: contours on layer CUT (each piece's slots before its outline),
+    labels on layer LABEL."""
+    contours = []
+    for poly in coupon.polygons:
+        contours.extend(polygon_contours(poly))
+    return dxf_bytes(contours, coupon.marks, dxf_version)

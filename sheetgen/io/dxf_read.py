@@ -39,12 +39,16 @@ import io
 import math
 from dataclasses import dataclass
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 import numpy as np
 
 from sheetgen.errors import InputFileError
 from sheetgen.geometry.cutpaths import FLATTEN_TOL_MM, JOIN_TOL_MM, ZERO_TOL_MM, CutGeometry, Segment, \
     closed_rings, drop_repeats
+
+if TYPE_CHECKING:
+    from sheetgen.production.preflight import PreflightReport
 
 CUT_LAYER = "CUT"
 MAX_ENTITIES = 250_000            # entities in model space, blocks exploded (about 1.6 GB, a minute)
@@ -421,3 +425,12 @@ def _assemble(rings, path: Path) -> list[DxfPart]:
     if len(parts) == 1:
         return [DxfPart(stem, parts[0][0], parts[0][1])]
     return [DxfPart(f"{stem}-{k + 1}", poly, circles) for k, (poly, circles) in enumerate(parts)]
+
+
+def preflight_file(path: str | Path, sheet_mm: tuple[float, float] | None = None, kerf_mm: float | None = None,
+                   layer: str | None = None) -> PreflightReport:
+    """Read a cut file with the one reader and check it
+    (:func:`sheetgen.production.preflight.check`)."""
+    from sheetgen.production.preflight import check
+
+    return check(read_cut_file(path, layer), sheet_mm, kerf_mm)

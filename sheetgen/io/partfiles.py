@@ -18,7 +18,7 @@ from sheetgen.geometry.kerf import cut_outline
 from sheetgen.geometry.contour import circles_of, polygon_contours
 from sheetgen.io.dxf import dxf_bytes
 from sheetgen.io.svg import svg_document
-from sheetgen.design.part import Mark, Part
+from sheetgen.kitmodel.part import Mark, Part
 
 
 @dataclass(frozen=True)

@@ -30,7 +30,7 @@ import numpy as np
 import shapely
 from shapely.geometry import Polygon
 
-from sheetgen import __version__
+from sheetgen.version import __version__
 
 STEP_TIME_STAMP = "2000-01-01T00:00:00"
 _FILE_NAME = re.compile(r"FILE_NAME\(.*?\);\s*\n", re.S)

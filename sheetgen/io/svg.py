@@ -11,7 +11,7 @@ from html import escape
 
 from shapely.geometry import Polygon
 
-from sheetgen.design.part import LAYER_GUIDE, LAYER_LABEL, Mark
+from sheetgen.kitmodel.part import LAYER_GUIDE, LAYER_LABEL, Mark
 
 STYLE = {
     "cut": 'fill="#e9dcc4" fill-rule="evenodd" stroke="#b22222" stroke-width="{w}"',

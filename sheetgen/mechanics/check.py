@@ -26,7 +26,7 @@ from sheetgen.mechanics.inertia import frame_inertia_kgm2
 from sheetgen.mechanics.pulse import AxleLoad, Motor
 from sheetgen.mechanics.massprops import suggest_counterweight
 from sheetgen.mechanics.materials import sheet_material
-from sheetgen.design.part import Kit
+from sheetgen.kitmodel.part import Kit
 from sheetgen.mechanics.balance_report import BalanceReport, Check
 from sheetgen.mechanics.load_geometry import ground_contact, to_ground_frame
 from sheetgen.mechanics.load_torque import axle_load

@@ -23,7 +23,7 @@ from shapely.geometry import Polygon
 from shapely.geometry.polygon import orient
 
 from sheetgen.mechanics.materials import sheet_material
-from sheetgen.design.part import Component, Kit, Part
+from sheetgen.kitmodel.part import Component, Kit, Part
 
 _MM_TO_M = 1e-3
 

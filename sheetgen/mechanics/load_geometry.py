@@ -13,7 +13,7 @@ from shapely.ops import unary_union
 
 from sheetgen.errors import GeometryBug
 from sheetgen.mechanics import loads
-from sheetgen.design.part import Kit
+from sheetgen.kitmodel.part import Kit
 
 
 @dataclass(frozen=True)

@@ -12,7 +12,7 @@ from dataclasses import dataclass
 
 from sheetgen.mechanics import loads, solar
 from sheetgen.mechanics.massprops import MassProperties, mass_properties
-from sheetgen.design.part import Kit
+from sheetgen.kitmodel.part import Kit
 from sheetgen.mechanics.load_geometry import WindPlate, wind_plate
 
 

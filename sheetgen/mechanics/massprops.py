@@ -24,7 +24,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from sheetgen.mechanics.materials import sheet_material
-from sheetgen.design.part import Component, Kit, Part
+from sheetgen.kitmodel.part import Component, Kit, Part
 
 _MM3_TO_M3 = 1e-9
 
@@ -187,7 +187,7 @@ COUNTERWEIGHT_ARM_STEP_MM = 1.0
 
 def frame_reach_mm(kit: Kit) -> float:
     """The turning frame's largest distance from the axle (its sweep radius)."""
-    from sheetgen.design.clearance import kit_silhouettes
+    from sheetgen.kitmodel.clearance import kit_silhouettes
 
     best = 0.0
     for s in kit_silhouettes(kit):
@@ -201,7 +201,7 @@ def _bar(mass_kg: float, centre_yz: tuple[float, float], x_mm: float):
     """Silhouette of the counterweight bar: a disc in (y, z), its length along x."""
     from shapely.geometry import Point
 
-    from sheetgen.design.clearance import Silhouette
+    from sheetgen.kitmodel.clearance import Silhouette
     from sheetgen.mechanics.materials import rod_material
 
     r = COUNTERWEIGHT_DIAMETER_MM / 2
@@ -215,7 +215,7 @@ def _sunny_sides(kit: Kit):
     up, where a weight would shade it or sit in it."""
     from shapely.geometry import box as rect
 
-    from sheetgen.design.clearance import Silhouette
+    from sheetgen.kitmodel.clearance import Silhouette
 
     out = []
     for c in kit.components:
@@ -247,7 +247,7 @@ def suggest_counterweight(kit: Kit, mp: MassProperties, travel_deg: tuple[float,
     as the frame's clearance check) and does not run into the turning parts
     or the axle (it may touch them). The farther out, the lighter it is. Its
     bracket to the frame is the builder's to fit."""
-    from sheetgen.design.clearance import kit_silhouettes, sweep_clearance
+    from sheetgen.kitmodel.clearance import kit_silhouettes, sweep_clearance
 
     carried = _carried(kit, mp)
     if carried is not None:

@@ -34,7 +34,7 @@ from dataclasses import dataclass
 import numpy as np
 from shapely.geometry import LineString, Polygon
 
-from sheetgen.design.part import Kit
+from sheetgen.kitmodel.part import Kit
 
 MOUNT_PART = "motor-mount"
 MOUNT_BACKLASH_SHARE = 0.25  # our rule (see the module notes)

@@ -46,9 +46,9 @@ What the checks call what:
   washers: they turn in place, and their gaps are measured at rest), against
   the fixed bodies, at every angle of the tracking range (solar module) in
   steps of at most MAX_SWEEP_STEP_DEG; the wheel and its pinion
-  (sheetgen.design.kit.MESHING) are rolled together instead, the pinion turning
+  (sheetgen.kitmodel.contacts.MESHING) are rolled together instead, the pinion turning
   z_wheel / z_pinion times as far the other way;
-* stops: the end stops (sheetgen.design.kit.STOPS) are left out of the sweep;
+* stops: the end stops (sheetgen.kitmodel.contacts.STOPS) are left out of the sweep;
   sheetgen.model3d.stops measures where they first touch each way (bisection),
   their least gap inside the travel and their shared volume a few degrees past it;
 * frame clearance: part against part where their x ranges overlap, which is

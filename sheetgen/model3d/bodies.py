@@ -4,7 +4,6 @@ formulas for prisms on parallel axes (no cadquery; see the package notes)."""
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 
 import numpy as np
 from shapely import affinity
@@ -12,11 +11,12 @@ from shapely.geometry import Point, Polygon
 
 from sheetgen.errors import GeometryBug, ParameterError
 from sheetgen.geometry.shapes import one_polygon
-from sheetgen.design.part import Kit
+from sheetgen.kitmodel.part import Kit
 # the component solids follow one rule with the assembly guide; MOTOR is read by pairs and checks from here
 from sheetgen.design.prisms import MOTOR, component_prisms, mesh_pairs as _mesh_pairs, snap as _snap
 from sheetgen.geometry.placement import Placement
 from sheetgen.geometry.prism import AXIS_TOL as _AXIS_TOL, Prism, spun
+from sheetgen.model3d.body import Body
 
 
 CONTACT_TOL_MM = 1e-3  # closer than this counts as touching
@@ -31,28 +31,6 @@ CLOSEST_PAIRS = 5  # clearance pairs listed in the report
 
 # ---------------------------------------------------------------------------
 # pure model
-
-
-@dataclass(frozen=True)
-class Body:
-    """One solid of the model: a part instance (``rib#1``) or a component."""
-
-    name: str
-    source: str  # part name or component name
-    kind: str  # "part" or "component"
-    rotating: bool
-    pieces: tuple[Prism, ...]
-    material: str = ""  # sheet material key (parts)
-    mass_kg: float | None = None  # components: as given in the kit
-    clamps: tuple[str, ...] = ()  # fasteners (kind "fastener"): the parts (and nut) whose faces they may touch
-
-    def aabb(self) -> tuple[np.ndarray, np.ndarray]:
-        pts = np.vstack([p.corners() for p in self.pieces])
-        return pts.min(axis=0), pts.max(axis=0)
-
-    def x_range_mm(self) -> tuple[float, float]:
-        lo, hi = self.aabb()
-        return float(lo[0]), float(hi[0])
 
 
 def mesh_turn_deg(wheel_teeth: int, pinion_teeth: int, wheel_at: Placement, pinion_at: Placement) -> float:

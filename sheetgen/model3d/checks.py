@@ -10,7 +10,7 @@ import time
 import numpy as np
 from shapely.geometry import Polygon
 
-from sheetgen.design.part import Kit
+from sheetgen.kitmodel.part import Kit
 from sheetgen.geometry.placement import vec3
 from sheetgen.model3d.bodies import CONTACT_TOL_MM, MASS_TOL, MOTOR, Prism, SHARED_VOLUME_TOL_MM3, SWEEP_STEP_DEG, _aabb_gap, _aabb_overlap, _in_frame_of, _mesh_pairs, mesh_turns_deg, parallel_shared_volume_mm3, spun, sweep_angles
 from sheetgen.model3d.measures import _Measures

@@ -30,9 +30,11 @@ from shapely.geometry import Polygon
 
 from sheetgen.design.hardware import (ISO_4032_NUT_MM, ISO_7089_WASHER_MM, HoleStack, bolt_length_mm, hole_stacks,
                                       metric_size)
-from sheetgen.design.part import Kit
+from sheetgen.kitmodel.part import Kit
 from sheetgen.geometry.placement import place
+from sheetgen.geometry.prism import Prism
 from sheetgen.geometry.shapes import GRID_MM, disc
+from sheetgen.model3d.body import Body
 
 # ISO 4762 socket head cap screw: head diameter dk and height k, mm (from memory)
 ISO_4762_HEAD_MM = {1.6: (3.0, 1.6), 2.0: (3.8, 2.0), 2.5: (4.5, 2.5), 3.0: (5.5, 3.0), 4.0: (7.0, 4.0),
@@ -67,8 +69,6 @@ def _basis(a: np.ndarray) -> tuple[tuple[float, float, float], tuple[float, floa
 
 def _prism(outline: Polygon, from_mm: np.ndarray, to_mm: np.ndarray, a: np.ndarray, rotating: bool):
     """A prism of ``outline`` (in the plane across ``a``) between two points on the axis."""
-    from sheetgen.model3d.bodies import Prism
-
     lo, hi = (from_mm, to_mm) if float((to_mm - from_mm) @ a) >= 0 else (to_mm, from_mm)
     u, v = _basis(a)
     depth = float((hi - lo) @ a)
@@ -80,10 +80,8 @@ def _rides_turning(kit: Kit, stack: HoleStack) -> bool:
     return any(pl.rotating for pl in part.placements)
 
 
-def fastener_bodies(kit: Kit) -> tuple:
+def fastener_bodies(kit: Kit) -> tuple[Body, ...]:
     """The ``bolt#N`` and ``nut#N`` bodies of the kit (see the module notes)."""
-    from sheetgen.model3d.bodies import Body
-
     out = []
     # the ones that matter for clearance: those that turn with the frame (the frame bolts, the bar's
     # screw); bolts through fixed plates (a polar kit's base and ground plate) stay undrawn

@@ -27,8 +27,8 @@ import numpy as np
 import shapely
 from shapely import affinity
 
-from sheetgen.design.kit import MESHING, MOTOR_GAP_MM, MOTOR_HOLDERS
-from sheetgen.design.part import Kit
+from sheetgen.kitmodel.contacts import MESHING, MOTOR_GAP_MM, MOTOR_HOLDERS
+from sheetgen.kitmodel.part import Kit
 from sheetgen.geometry.placement import place
 from sheetgen.geometry.shapes import disc, rect
 from sheetgen.model3d.fasteners import may_touch

@@ -101,7 +101,7 @@ class SolidInfo:
 
 @dataclass(frozen=True)
 class StopCheck:
-    """A turning stop against its fixed stop (sheetgen.design.kit.STOPS), measured on the solids."""
+    """A turning stop against its fixed stop (sheetgen.kitmodel.contacts.STOPS), measured on the solids."""
 
     turning: str
     fixed: str

@@ -13,7 +13,7 @@ import numpy as np
 from shapely.geometry import Polygon
 
 from sheetgen.errors import GeometryBug
-from sheetgen.design.part import Kit
+from sheetgen.kitmodel.part import Kit
 from sheetgen.geometry.placement import Placement
 from sheetgen.model3d.bodies import Body, Prism, model_bodies
 

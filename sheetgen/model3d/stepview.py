@@ -17,7 +17,7 @@ import shapely
 from shapely.geometry import Polygon
 
 from sheetgen.design.assembly_order import Step, solid_items
-from sheetgen.design.part import Kit
+from sheetgen.kitmodel.part import Kit
 from sheetgen.geometry.prism import Prism
 
 NEW_COLOUR = "#d9480f"  # the items put in at this step

@@ -1,6 +1,6 @@
 """The end stops on the solids: they meet at the travel limit, and only there.
 
-For each pair of sheetgen.design.kit.STOPS in the model, the turning stop is turned
+For each pair of sheetgen.kitmodel.contacts.STOPS in the model, the turning stop is turned
 about the axle and measured against the fixed one (exact shapely formulas for plates
 on parallel axes, OpenCascade otherwise, as the other checks):
 
@@ -19,7 +19,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from sheetgen.design.kit import STOPS
+from sheetgen.kitmodel.contacts import STOPS
 from sheetgen.model3d.bodies import CONTACT_TOL_MM, SHARED_VOLUME_TOL_MM3
 from sheetgen.model3d.measures import _Measures
 from sheetgen.model3d.records import StopCheck

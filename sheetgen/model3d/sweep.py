@@ -11,7 +11,7 @@ import shapely
 from shapely import affinity
 from shapely.geometry import MultiPoint, Polygon
 
-from sheetgen.design.kit import MESHING, STOPS
+from sheetgen.kitmodel.contacts import MESHING, STOPS
 from sheetgen.model3d.bodies import CLOSEST_PAIRS, Prism, CONTACT_TOL_MM, SHARED_VOLUME_TOL_MM3, _x_gap, _x_overlap, turns_in_place
 from sheetgen.model3d.measures import _Measures, distance_bound_mm
 from sheetgen.model3d.records import Clearance, Collision, Touch

@@ -29,7 +29,7 @@ from dataclasses import dataclass
 from shapely.geometry import Polygon, box
 
 from sheetgen.errors import ParameterError
-from sheetgen.design.part import LAYER_LABEL, Mark
+from sheetgen.kitmodel.part import LAYER_LABEL, Mark
 
 SLOT_BELOW_MM = 0.30
 SLOT_ABOVE_MM = 0.20
@@ -56,7 +56,7 @@ class Coupon:
 
 
 def _thickness_range() -> tuple[float, float]:
-    from sheetgen.design.spec import SCHEMA_BY_PATH
+    from sheetgen.design.schema import SCHEMA_BY_PATH
 
     key = SCHEMA_BY_PATH["sheet.thickness"]
     assert key.lo is not None and key.hi is not None  # the schema bounds this key on both sides
@@ -64,7 +64,7 @@ def _thickness_range() -> tuple[float, float]:
 
 
 def _kerf_range() -> tuple[float, float]:
-    from sheetgen.design.spec import SCHEMA_BY_PATH
+    from sheetgen.design.schema import SCHEMA_BY_PATH
 
     key = SCHEMA_BY_PATH["laser.kerf"]
     assert key.lo is not None and key.hi is not None  # the schema bounds this key on both sides
@@ -138,18 +138,6 @@ def make_coupon(thickness_mm: float, square_mm: float = 20.0) -> Coupon:
 
 def _r(v: float) -> float:
     return round(v, 6) + 0.0
-
-
-def coupon_dxf_bytes(coupon: Coupon, dxf_version: str = "R2000") -> bytes:
-    """The coupon as a cut file: contours on layer CUT (each piece's slots
-    before its outline), labels on layer LABEL."""
-    from sheetgen.geometry.contour import polygon_contours
-    from sheetgen.io.dxf import dxf_bytes
-
-    contours = []
-    for poly in coupon.polygons:
-        contours.extend(polygon_contours(poly))
-    return dxf_bytes(contours, coupon.marks, dxf_version)
 
 
 def kerf_from_measurement(nominal_mm: float, measured_mm: float | Sequence[float]) -> float:

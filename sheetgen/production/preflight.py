@@ -66,7 +66,6 @@ from __future__ import annotations
 import math
 import re
 from dataclasses import dataclass
-from pathlib import Path
 
 import numpy as np
 
@@ -489,22 +488,3 @@ def _thin_parts(region, radius_mm: float, opened=None) -> list[tuple[float, floa
             p = piece.representative_point()
             out.append((p.x, p.y))
     return out
-
-
-def preflight_file(path: str | Path, sheet_mm: tuple[float, float] | None = None, kerf_mm: float | None = None,
-                   layer: str | None = None) -> PreflightReport:
-    from sheetgen.io.dxf_read import read_cut_file  # the one reader (I/O at the edge)
-
-    return check(read_cut_file(path, layer), sheet_mm, kerf_mm)
-
-
-def parse_sheet(text: str) -> tuple[float, float]:
-    """``WxH`` in mm, e.g. ``600x400``."""
-    parts = re.split(r"[xX*]", text.strip())
-    try:
-        w, h = (float(p) for p in parts)
-    except ValueError:
-        raise ParameterError(f"--sheet {text!r}: must be WIDTHxHEIGHT in mm, for example 600x400") from None
-    if not (0 < w <= 10000 and 0 < h <= 10000) or not (math.isfinite(w) and math.isfinite(h)):
-        raise ParameterError(f"--sheet {text!r}: width and height must be from 0 to 10000 mm (above 0)")
-    return (w, h)

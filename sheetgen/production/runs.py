@@ -17,7 +17,7 @@ from sheetgen.geometry.kerf import cut_outline
 from sheetgen.geometry.shapes import turn_point
 from sheetgen.geometry.contour import Contour, circles_of, polygon_contours
 from sheetgen.production.nesting import NestItem, NestResult, sheet_patterns
-from sheetgen.design.part import LAYER_LABEL, Mark
+from sheetgen.kitmodel.part import LAYER_LABEL, Mark
 
 
 @dataclass(frozen=True)

@@ -59,7 +59,7 @@ def main() -> None:
     ap.add_argument("--keep", type=Path, default=None, help="write the file here and keep it")
     args = ap.parse_args()
 
-    from sheetgen.production.preflight import preflight_file
+    from sheetgen.io.dxf_read import preflight_file
 
     with tempfile.TemporaryDirectory() as tmp:
         path = args.keep or Path(tmp) / f"bench-{args.kind}-{args.count}.dxf"

@@ -1,6 +1,6 @@
 """The order of assembly, derived from the kit: which piece goes in when, and from where.
 
-Pure: a :class:`~sheetgen.design.part.Kit` in, ordered :class:`Step` s out.
+Pure: a :class:`~sheetgen.kitmodel.part.Kit` in, ordered :class:`Step` s out.
 
 Every part instance and every solid component (axle, panel, motor with its
 shaft) is a prism or a few prisms in the kit frame. An item can be put in place

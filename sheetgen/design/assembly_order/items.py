@@ -8,7 +8,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from sheetgen.design.part import Kit
+from sheetgen.kitmodel.part import Kit
 from sheetgen.design.prisms import component_prisms
 from sheetgen.geometry.prism import Prism
 

@@ -7,7 +7,7 @@ import numpy as np
 
 from sheetgen.design.assembly_order.blocking import Blocking
 from sheetgen.design.assembly_order.items import NO_STRAIGHT_PATH, Item, Move, kit_directions, solid_items
-from sheetgen.design.part import Component, Kit
+from sheetgen.kitmodel.part import Component, Kit
 
 
 def _natural_key(it: Item, box: np.ndarray) -> tuple:
@@ -25,7 +25,7 @@ class Planner:
         self.directions = kit_directions(self.items)
         self.blk = Blocking(self.items, self.directions)
         self.keys = [_natural_key(it, self.blk.boxes[i]) for i, it in enumerate(self.items)]
-        from sheetgen.design.kit import MESHING
+        from sheetgen.kitmodel.contacts import MESHING
 
         self.hits = self.blk.masks(MESHING)
         self.joints = kit.joints

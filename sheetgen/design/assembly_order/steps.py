@@ -10,7 +10,7 @@ import numpy as np
 
 from sheetgen.design.assembly_order.planner import Planner, group_moves
 from sheetgen.design.assembly_order.words import grips, rod_items, step_words, threaded
-from sheetgen.design.part import Kit
+from sheetgen.kitmodel.part import Kit
 
 
 @dataclass(frozen=True)
@@ -107,7 +107,7 @@ def assembly_steps(kit: Kit, spec, hardware: tuple | None = None) -> tuple[Step,
 
     ``hardware``: the bought items (objects with ``item``, ``spec``, ``qty_per_kit`` and
     optionally ``parts``/``final``); by default :func:`guide_items`."""
-    from sheetgen.design.kit import MESHING
+    from sheetgen.kitmodel.contacts import MESHING
 
     planner = Planner(kit)
     moves = tuple(planner.order(frozenset(range(len(planner.items)))))

@@ -9,7 +9,7 @@ import numpy as np
 from shapely.geometry import Point, Polygon
 
 from sheetgen.design.assembly_order.items import AXES, NO_STRAIGHT_PATH
-from sheetgen.design.part import Kit
+from sheetgen.kitmodel.part import Kit
 
 if TYPE_CHECKING:
     from sheetgen.design.assembly_order.planner import Planner

@@ -16,7 +16,7 @@ from shapely.geometry import Polygon
 
 from sheetgen.geometry.joints import Edge, fit_clearance_mm
 from sheetgen.geometry.shapes import disc
-from sheetgen.design.part import Circle, Mark, Sprung
+from sheetgen.kitmodel.part import Circle, Mark, Sprung
 from sheetgen.geometry.placement import Placement
 
 

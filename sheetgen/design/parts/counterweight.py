@@ -32,7 +32,7 @@ import numpy as np
 from shapely.ops import unary_union
 
 from sheetgen.design.layout import Layout
-from sheetgen.design.part import Component, Kit, Part
+from sheetgen.kitmodel.part import Component, Kit, Part
 from sheetgen.design.parts import Blank, Hole, round_hole
 from sheetgen.geometry.placement import place
 from sheetgen.geometry.shapes import disc, hull, one_polygon
@@ -73,7 +73,7 @@ def plan_counterweight(spec, L: Layout, parts: tuple[Part, ...],
                        components: tuple[Component, ...]) -> CounterweightPlan | None:
     """The bracket and bar that balance the bare frame, or None when it needs none
     (or no arm opposite its CG is free: the balance check then says so)."""
-    from sheetgen.design.clearance import kit_silhouettes
+    from sheetgen.kitmodel.clearance import kit_silhouettes
     from sheetgen.mechanics.massprops import mass_properties
     from sheetgen.mechanics.materials import sheet_material
 

@@ -8,7 +8,7 @@ from shapely.ops import unary_union
 from sheetgen.geometry.joints import Edge, fit_clearance_mm
 from sheetgen.geometry.shapes import d_shape, disc, hull, one_polygon, rect
 from sheetgen.design.layout import CLAMP_TOL_MM, FINGER_SLOT_MM, PANEL_CLEARANCE_MM, Layout
-from sheetgen.design.part import LAYER_GUIDE, Mark, Sprung
+from sheetgen.kitmodel.part import LAYER_GUIDE, Mark, Sprung
 from sheetgen.geometry.placement import place
 from sheetgen.design.parts import Blank, Hole, plain_hole, round_hole
 

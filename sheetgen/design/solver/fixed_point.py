@@ -8,7 +8,7 @@ from __future__ import annotations
 
 import dataclasses
 
-from sheetgen.design.spec import AUTO, SCHEMA, Derived, check_cross_rules
+from sheetgen.design.schema import AUTO, SCHEMA, Derived, check_cross_rules
 from sheetgen.design.solver.model import Solution, State, with_values
 from sheetgen.design.solver.rules import (BORDER_MIN_MM, LOAD_KEYS, MIN_PINION_TEETH, RULES, load_torque_Nm,
                                           module_floor_mm)

@@ -10,7 +10,7 @@ from dataclasses import dataclass
 from typing import Callable
 
 from sheetgen.errors import ParameterError
-from sheetgen.design.spec import SCHEMA, SCHEMA_BY_PATH
+from sheetgen.design.schema import SCHEMA, SCHEMA_BY_PATH
 
 
 class NoLayout(ParameterError):

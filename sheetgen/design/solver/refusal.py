@@ -10,7 +10,7 @@ import math
 from collections.abc import Sequence
 
 from sheetgen.errors import ParameterError, SheetTooSmall
-from sheetgen.design.spec import SCHEMA_BY_PATH
+from sheetgen.design.schema import SCHEMA_BY_PATH
 from sheetgen.design.solver.fixed_point import solve_core
 from sheetgen.design.solver.model import NoLayout, key_hi, key_lo, with_values
 

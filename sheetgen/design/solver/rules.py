@@ -10,7 +10,7 @@ from __future__ import annotations
 import math
 
 from sheetgen.errors import ParameterError
-from sheetgen.design.spec import SCHEMA_BY_PATH
+from sheetgen.design.schema import SCHEMA_BY_PATH
 from sheetgen.design.solver.model import NoLayout, Rule, State, key_hi, key_lo, with_values
 
 
@@ -319,7 +319,7 @@ def _turning_reach_mm(kit) -> float:
     """Farthest point of any turning part from the axle, seen along it."""
     import numpy as np
 
-    from sheetgen.design.clearance import kit_silhouettes
+    from sheetgen.kitmodel.clearance import kit_silhouettes
 
     pts = [np.asarray(sil.shape.exterior.coords) for sil in kit_silhouettes(kit) if sil.rotating]
     return float(max(np.hypot(p[:, 0], p[:, 1]).max() for p in pts)) if pts else 0.0

@@ -57,7 +57,7 @@ def _check_number(key: str, value, allowed: str, ok) -> None:
 
 
 def settings_from_spec(spec) -> LaserSettings:
-    """Laser settings from a validated :class:`sheetgen.design.spec.Spec`."""
+    """Laser settings from a validated :class:`sheetgen.design.schema.Spec`."""
     rate = spec.value("laser.rate")
     price = spec.value("sheet.price")
     return LaserSettings(

@@ -31,19 +31,19 @@ sheet) than the order search.
 from __future__ import annotations
 
 import math
-from collections.abc import Callable, Sequence
+from collections.abc import Callable
 from dataclasses import dataclass
 
 from sheetgen.errors import GeometryBug
 from sheetgen.production.nesting.decode import Decoder, State
 from sheetgen.production.nesting.pairs import expand, pair_item, saving_bound
 from sheetgen.production.nesting.place import RULES, Sheet, ShapeLibrary, Work
+from sheetgen.production.nesting.rows import TOL_UNITS, box_rows
 
 PAIR_SAVING = 0.25       # pairs are tried when their boxes save at least this share of a sheet's area
 KINDS_PER_WIDTH = 10     # column kinds kept per leading box (the fullest)
 KIND_NODES = 5000        # search nodes per leading box
 SHEET_NODES = 4000       # depth-first nodes per sheet
-TOL_UNITS = 4            # grid units by which boxes may exceed the area in sums (float rounding)
 NODE_UNITS = 40          # work charged per search node
 FILLER_WEIGHTS = (1.0, 0.5, 0.25, 0.0)   # weight of the smaller parts in a column's value, per series of greedy runs
 ROUNDS = 8               # greedy runs per series (class weights corrected after each)
@@ -424,7 +424,7 @@ def _place_rest(lib: ShapeLibrary, rest: list[int], usable, sheets: list[Sheet],
     sheet with room (windows included), new sheets when none has. When
     ``stop()`` says so (the wall-clock ceiling), the parts not yet placed go
     in rows of boxes into the free ends of the sheets and onto new sheets
-    (:func:`box_rows`): the layout is always complete, and cheap to finish."""
+    (:func:`~sheetgen.production.nesting.rows.box_rows`): the layout is always complete, and cheap to finish."""
     hull = lib.hull_areas()
     order = sorted(range(len(rest)), key=lambda p: (-hull[rest[p]], rest[p], p))
     dec = Decoder(lib, rest, usable, len(rest) + len(sheets), work)
@@ -445,65 +445,3 @@ def _place_rest(lib: ShapeLibrary, rest: list[int], usable, sheets: list[Sheet],
             out[k].extend(parts)
         out.extend(new)
     return list(st.sheets), out
-
-
-def box_rows(lib: ShapeLibrary, items: list[int], usable,
-             ends: Sequence[tuple[int, float]] = ()) -> tuple[dict[int, list], list[list[tuple[int, int, int, int]]]]:
-    """``items`` in rows of their bounding boxes (tallest first, each row left
-    to right, rows bottom to top, a part at least the spacing from the next):
-    first into the free ends of existing sheets (``ends``: (sheet index, x in
-    mm where its parts' boxes end), the free end starting the spacing further
-    on), then onto new sheets. No no-fit polygon, so quick, and valid for any
-    outline because boxes the spacing apart hold parts the spacing apart.
-    Each item lies in the angle of its lowest box that fits the usable area.
-    Grid positions are rounded up and kept inside the usable area, so a gap
-    may be short of the spacing by a few grid units (about 1e-9 mm), far below
-    the tolerance, as in :func:`_finish`. Returns (parts added per existing sheet,
-    new sheets), parts as (item, shape id, px, py)."""
-    x0, y0, x1, y1 = usable
-    s, scale = lib.spacing, lib.scale
-    tol = TOL_UNITS / scale   # float rounding; positions are clamped into the usable area
-
-    def shape(i: int) -> int:
-        fits = [sid for sid in lib.item_shapes[i]
-                if lib.shapes[sid].width <= x1 - x0 and lib.shapes[sid].height <= y1 - y0]
-        return min(fits, key=lambda sid: (lib.shapes[sid].height, sid))
-
-    left = sorted(((lib.shapes[shape(i)].height, lib.shapes[shape(i)].width, i, shape(i)) for i in items),
-                  key=lambda e: (-e[0], -e[1], e[2], e[3]))
-
-    def fill(bx: float) -> list[tuple[int, int, int, int]]:
-        """Rows from x = bx to the usable area's right edge; takes what fits out of ``left``."""
-        nonlocal left
-        out: list[tuple[int, int, int, int]] = []
-        rest = []
-        x = y = row_h = 0.0   # cursor from (bx, y0), mm
-        for e in left:
-            h, w, i, sid = e
-            if bx + x + w > x1 + tol and out and bx + w <= x1 + tol and y + row_h + s + h <= y1 - y0 + tol:
-                x, y, row_h = 0.0, y + row_h + s, 0.0
-            if bx + x + w > x1 + tol or y + h > y1 - y0 + tol:
-                rest.append(e)
-                continue
-            px = min(math.ceil((bx + x) * scale), math.floor((x1 - w) * scale))
-            py = min(math.ceil((y0 + y) * scale), math.floor((y1 - h) * scale))
-            out.append((i, sid, px, py))
-            x += w + s
-            row_h = max(row_h, h)
-        left = rest
-        return out
-
-    added: dict[int, list] = {}
-    for k, x_end in ends:
-        if not left:
-            break
-        got = fill(max(x0, x_end + s))
-        if got:
-            added[k] = got
-    new: list[list[tuple[int, int, int, int]]] = []
-    while left:
-        got = fill(x0)
-        if not got:  # cannot happen: every part fits the usable area in some angle (checked by nest)
-            raise GeometryBug(f"item {left[0][2]}: no room on an empty sheet for its box")
-        new.append(got)
-    return added, new

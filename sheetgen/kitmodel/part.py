@@ -21,6 +21,7 @@ from typing import TYPE_CHECKING
 import numpy as np
 from shapely.geometry import Polygon
 
+from sheetgen.geometry.contour import Circle
 from sheetgen.geometry.placement import Placement, rotation_x, vec_tuple
 
 if TYPE_CHECKING:
@@ -56,15 +57,6 @@ class Mark:
             tx, ty = turn_point(x, y, angle_deg, dx_mm, dy_mm)
             pts.append((round(tx, 6) + 0.0, round(ty, 6) + 0.0))
         return Mark(self.layer, self.kind, tuple(pts), self.text, self.height_mm, (self.angle_deg + angle_deg) % 360.0)
-
-
-@dataclass(frozen=True)
-class Circle:
-    """A round hole of the nominal outline, kept so writers can emit true circles."""
-
-    x_mm: float
-    y_mm: float
-    radius_mm: float
 
 
 @dataclass(frozen=True)

@@ -21,7 +21,7 @@ import shapely
 from shapely import affinity
 from shapely.geometry import MultiPoint, Polygon
 
-from sheetgen.design.part import Kit, Part
+from sheetgen.kitmodel.part import Kit, Part
 from sheetgen.geometry.placement import Placement
 from sheetgen.geometry.shapes import one_polygon
 
