@@ -17,6 +17,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from shapely.geometry import Polygon, box
 
+from sheetgen.design import schema
 from sheetgen.design import spec as spec_mod
 from sheetgen.errors import ParameterError
 from sheetgen.mechanics.teeth import lewis_form_factor
@@ -79,8 +80,8 @@ def test_rod_densities():
 
 
 def test_tables_cover_the_spec_choices_and_name_sources():
-    assert set(materials.SHEET_MATERIALS) == set(spec_mod.MATERIAL_CHOICES)
-    assert set(materials.ROD_MATERIALS) == set(spec_mod.SCHEMA_BY_PATH["axle.material"].choices)
+    assert set(materials.SHEET_MATERIALS) == set(schema.MATERIAL_CHOICES)
+    assert set(materials.ROD_MATERIALS) == set(schema.SCHEMA_BY_PATH["axle.material"].choices)
     for m in materials.SHEET_MATERIALS.values():
         assert m.density_source and m.bending_strength_source
         assert m.density_range_kg_m3[0] <= m.density_kg_m3 <= m.density_range_kg_m3[1]
