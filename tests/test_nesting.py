@@ -620,3 +620,30 @@ def test_parts_alike_in_size_keep_their_own_allowed_angles(sheet):
     for s in result.sheets:
         for p in s:
             assert p.angle_deg in items[p.item].rotations_deg
+
+
+def test_strip_cost_never_trades_a_part_for_a_tidier_layout():
+    # Internal cross-check of the strip search's cost (production/nesting/improve.py _strip_cost):
+    # leaving a part out must cost more than any layout that places every part, however far right
+    # that layout reaches, or the search would drop parts to tidy the rest; among layouts that place
+    # every part, the one reaching less far costs less.
+    from sheetgen.production.nesting.decode import Decoder
+    from sheetgen.production.nesting.improve import _strip_cost
+    from sheetgen.production.nesting.place import ShapeLibrary, Work
+
+    lib = ShapeLibrary([box(0, 0, 10, 10), box(0, 0, 4, 4)], [(0.0,), (0.0,)], 0.0, 1e-7, 1000.0)
+    parts = [0, 0, 0, 1]   # three 10 mm squares and a 4 mm one, in a strip 10 mm wide
+    plan = [(p, None) for p in range(len(parts))]
+
+    def cost_in(length):
+        dec = Decoder(lib, parts, (0.0, 0.0, length, 10.0), 1, Work())
+        cost, all_placed = _strip_cost(lib, parts, 0.0, length)
+        d = dec.decode(plan)
+        return cost(d), all_placed, d.final
+
+    short, ceiling, st = cost_in(25.0)           # room for two squares and the small one
+    assert st.unplaced and short >= 16.0 > ceiling  # at least the small square's area is left out
+    roomy, _, st = cost_in(100.0)
+    assert not st.unplaced and roomy < ceiling
+    snug, _, st = cost_in(34.0)                  # the same layout in a strip it nearly fills
+    assert not st.unplaced and roomy < snug < ceiling

@@ -19,9 +19,11 @@ of the others where they fit.
 Strip mode (``strip_width_mm=W``): the strip runs along +x from x = 0 with its
 width along y; the length used is the rightmost cut contour plus the margin.
 The search repeatedly asks for a layout in a strip a little shorter than the
-best so far (2 % at first; the cost is the area of the parts that do not fit),
-halves the step (down to 0.2 %) when it cannot find one, and carries the plan
-that came closest into the next attempt. When some parts pair well
+best so far (2 % at first; the cost is the area of the parts that do not fit,
+then, as a tie-break worth less than the smallest part, how far right the
+placed parts reach; an attempt gives up after a run of steps that leave no
+less area out), halves the step (down to 0.2 %) when it cannot find one, and
+carries the plan that came closest into the next attempt. When some parts pair well
 (:mod:`~sheetgen.production.nesting.pairs`), a first layout with them in pairs
 is decoded too, and the search goes on from the shorter of the two.
 

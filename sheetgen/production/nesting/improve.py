@@ -20,6 +20,8 @@ from sheetgen.production.nesting.budget import Budget, Deadline, StageClock
 
 FIRST_SHARE = 0.3            # of a batch's budget, at most, for the starting layouts beyond the first
 SEARCHES = 2                 # independent improvement searches per stage, each with the full budget
+TIE_SHARE = 0.5              # strip mode: the leftward tie-break is worth less than this share of the smallest part
+TIE_BELOW = 0.999            # ... strictly less: a layout with every part placed costs less than the tie's ceiling
 
 
 def initial_orders(lib: ShapeLibrary, part_items: list[int]) -> list[tuple]:
@@ -87,14 +89,40 @@ def _shrink(lib, part_items, usable, best, stage, rng, clock, progress_of):
         target = best_len - step * (best_len - x0)
         dec = Decoder(lib, part_items, (x0, y0, target, y1), 1, stage.work)
         start = dec.decode(current.plan, current.rule)
-        found, cost = late_acceptance(dec, start, lambda d: d.final.unplaced_area, rng=rng, budget_units=stage.units,
-                                      stop=clock.stop, target=0.0, stall_limit=max(150, 6 * n), on_step=on_step)
+        cost, all_placed = _strip_cost(lib, part_items, x0, target)
+        found, _ = late_acceptance(dec, start, cost, rng=rng, budget_units=stage.units, stop=clock.stop,
+                                   target=all_placed, stall_limit=max(150, 6 * n), on_step=on_step,
+                                   stall_cost=lambda d: d.final.unplaced_area)
         current = found  # a failed attempt still hands on its best plan
-        if cost <= 0.0:
+        if not found.final.unplaced:
             best, best_len = found, used_x(found)
         elif step > min_step:
             step = max(min_step, step / 2)
     return best
+
+
+def _strip_cost(lib, part_items, x0: float, length: float):
+    """(cost, the cost below which every part is placed) of a layout in a
+    strip ``length`` long: the area of the parts left out, then, as a tie-break
+    worth less than TIE_SHARE of the smallest part (so it never outweighs a
+    part), how far right the placed parts reach: the area-weighted mean of
+    their right ends, over the strip. Of two plans that leave the same parts
+    out, the search so keeps the one that leaves more room at the strip's end."""
+    tie = TIE_SHARE * min(lib.shapes[sid].area for i in set(part_items) for sid in lib.item_shapes[i])
+    shapes, scale = lib.shapes, lib.scale
+    span = max(length - x0, 1e-9)
+
+    def cost(d: Decoded) -> float:
+        st = d.final
+        num = den = 0.0
+        for _p, _si, sid, px, _py in st.placements:
+            sh = shapes[sid]
+            num += sh.area * (px / scale + sh.width)
+            den += sh.area
+        reach = min(1.0, max(0.0, (num / den - x0) / span)) if den else 1.0
+        return st.unplaced_area + tie * TIE_BELOW * reach
+
+    return cost, tie
 
 
 def _sheet_key(d: Decoded) -> tuple:

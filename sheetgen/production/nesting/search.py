@@ -102,8 +102,14 @@ def neighbour(plan: tuple, rng: random.Random, decoder: Decoder, unplaced: tuple
 def late_acceptance(decoder: Decoder, start: Decoded, cost: Callable[[Decoded], float], *,
                     rng: random.Random, budget_units: int, stop: Callable[[], bool],
                     target: float = -float("inf"), history: int = HISTORY, stall_limit: int | None = None,
-                    on_step: Callable[[], None] | None = None) -> tuple[Decoded, float]:
-    """Best decoded plan found from ``start`` and its cost."""
+                    on_step: Callable[[], None] | None = None,
+                    stall_cost: Callable[[Decoded], float] | None = None) -> tuple[Decoded, float]:
+    """Best decoded plan found from ``start`` and its cost.
+
+    The search stops after ``stall_limit`` steps in a row that found nothing
+    better; with ``stall_cost``, only a lower ``stall_cost`` counts as better
+    there (a cost with a tie-break keeps improving in small steps, which
+    should not keep a hopeless attempt alive)."""
     work = decoder.work
     current, cur_cost = start, cost(start)
     best, best_cost = current, cur_cost
@@ -128,8 +134,9 @@ def late_acceptance(decoder: Decoder, start: Decoded, cost: Callable[[Decoded], 
         past[slot] = cur_cost
         step += 1
         if c < best_cost:
+            gained = stall_cost is None or stall_cost(cand) < stall_cost(best)
             best, best_cost = cand, c
-            stall = 0
+            stall = 0 if gained else stall + 1
         else:
             stall += 1
             if stall_limit is not None and stall >= stall_limit:
