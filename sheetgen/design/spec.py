@@ -20,8 +20,9 @@ import tomllib
 from pathlib import Path
 from typing import Any
 
-from sheetgen.design.schema import (AUTO, COLOUR_FORM, POSITION_LIMIT_MM, REQUIRED, ROTATING_MASS_KEYS, ROTATING_MASS_LIMIT_KG, SCHEMA,
-                                    SCHEMA_BY_PATH, SECTIONS, Derived, Key, RotatingMass, Spec, check_cross_rules)
+from sheetgen.design.schema import (AUTO, COLOUR_FORM, POSITION_LIMIT_MM, REQUIRED, ROTATING_MASS_KEYS,
+                                    ROTATING_MASS_LIMIT_KG, SCHEMA, SCHEMA_BY_PATH, SECTIONS, Derived, Key,
+                                    RotatingMass, Spec, check_cross_rules)
 from sheetgen.design.sections import SECTION_CLASSES
 from sheetgen.errors import InputFileError, ParameterError
 from sheetgen.geometry.placement import vec3
