@@ -142,3 +142,28 @@ def test_the_convex_pieces_cover_the_region_exactly():
         assert p.is_valid and p.convex_hull.area == pytest.approx(p.area, rel=1e-9)
     assert sum(p.area for p in pieces) == pytest.approx(region.area, rel=1e-9)
     assert shapely.union_all(pieces).symmetric_difference(region).area < 1e-9
+
+
+def test_the_bound_of_a_run_on_two_cores_is_the_hand_count_and_its_proofs_stay_with_the_caller():
+    # Internal cross-check of the concurrent path (sheetgen/production/nesting/engine.py, _Bound):
+    # with two jobs the bound is computed in a second process while the layouts are made. The
+    # run is the first case above, whose bound is 2 by the hand count written there; the run on
+    # two cores reports that bound, lays out the same sheets as on one core, and the proofs the
+    # second process made are kept by the caller (a second count here makes none anew).
+    from sheetgen.production.nesting import bound as bound_mod
+
+    items = [NestItem("plate", frame_with_window(200, 160, 120, 80), 1, (0.0,)),
+             NestItem("disc", disc(66), 2, (0.0, 90.0, 180.0, 270.0))]
+    bound_mod._EXCLUSIVE.clear()
+    on_two = nest(items, sheet_mm=(200, 160), effort=0.36, time_limit_s=CEILING_S, jobs=2)
+    value, fresh = bound_mod.bound_and_proofs(items, (200, 160), 0, 0)
+    assert value == 2 and fresh == {}
+    on_one = nest(items, sheet_mm=(200, 160), effort=0.36, time_limit_s=CEILING_S, jobs=1)
+
+    def layout(r):
+        return [[(p.item, p.copy, p.x_mm, p.y_mm, p.angle_deg) for p in sheet] for sheet in r.sheets]
+
+    for result in (on_two, on_one):
+        verify(result, items)
+        assert result.lower_bound_sheets == 2
+    assert layout(on_two) == layout(on_one)

@@ -37,6 +37,9 @@ ASSIGN_SHARE = 0.5           # of a stage's budget for the assignment search (as
 def sheet_run(lib, counts, usable, lower, work, budget, rng, clock, jobs):
     """Sheets for ``counts`` copies of each item: batches, patterns repeated, the rest nested (module doc).
 
+    ``lower()`` gives the run's lower bound of sheets; it is asked for only when the last batch
+    needs it (it may still be computed in another process while the first batches are nested).
+
     Each stage gets its share of the work budget and the same share of the
     wall-clock ceiling. Returns (sheets as lists of (item, shape id, px, py),
     unplaced items, stage budgets, stage clocks)."""
@@ -62,8 +65,12 @@ def sheet_run(lib, counts, usable, lower, work, budget, rng, clock, jobs):
         f0 = 1.0 - total / total0
         f1 = 1.0 - (total - sum(batch)) / total0 if not last else 1.0
         part_items = [i for i, q in enumerate(batch) for _ in range(q)]
-        # a batch may use one sheet more than its share of the whole run's bound
-        share_lower = 1 if not last else max(1, lower - len(sheets))
+        done = len(sheets)
+
+        def share_lower(last=last, done=done) -> int:
+            # the last batch: the run's bound less the sheets before it; a batch before: one sheet
+            return max(1, lower() - done) if last else 1
+
         # column layouts of the large parts first; the order search when they miss the bound. Like a
         # first layout, always finished: bounded work, the same on any machine unless the run's
         # wall-clock ceiling fires, which cuts the finishing short (the parts not yet placed go in
@@ -72,20 +79,20 @@ def sheet_run(lib, counts, usable, lower, work, budget, rng, clock, jobs):
         got = column_layout(lib, batch, usable, work, max(stage_end, budget), share_lower,
                             stop=clock.stop, finished=3, pairs=True) or []
         unplaced_items: list[int] = []
-        if not got or (last and len(got) > share_lower and work.units < stage_end and not clock.stop()):
+        if not got or (last and len(got) > share_lower() and work.units < stage_end and not clock.stop()):
             stage = Budget(work, work.units + int(max(0, stage_end - work.units) * (1 - ASSIGN_SHARE)))
             stages.append(stage)
             placements, unplaced_parts, n_sheets = sheet_search(
-                lib, part_items, usable, share_lower, stage, rng, stage_clock,
+                lib, part_items, usable, share_lower(), stage, rng, stage_clock,
                 progress_of(clock, work, work.units, share, f0, f1), compact=last, jobs=jobs)
             searched: list[list[tuple]] = [[] for _ in range(n_sheets)]
             for p, si, sid, px, py in placements:
                 searched[si].append((part_items[p], sid, px, py))
             if not got or (not unplaced_parts and _key(lib, searched) < _key(lib, got)):
                 got, unplaced_items = searched, [part_items[p] for p in unplaced_parts]
-        if not unplaced_items and len(got) > share_lower:
+        if not unplaced_items and len(got) > share_lower():
             stages.append(Budget(work, stage_end))
-            got = reassign(lib, got, usable, share_lower, work, stage_end, rng, stage_clock.stop)
+            got = reassign(lib, got, usable, share_lower(), work, stage_end, rng, stage_clock.stop)
             stages[-1].spent()
         if got:  # a longer remnant on the batch's last sheet (the run's last, or repeated with its block);
             # a small fixed amount of work, cut only by the run's wall-clock ceiling

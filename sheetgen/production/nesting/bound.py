@@ -312,3 +312,20 @@ def lower_bound_sheets(items, sheet_mm: tuple[float, float], margin_mm: float, s
     big_rects = sum(it.qty for sz, it in zip(sizes, items)
                     if all(rect and bw > (uw - s) / 2 and bh > (uh - s) / 2 for bw, bh, rect in sz))
     return max(1, by_area, big_claims, big_rects)
+
+
+def bound_and_proofs(items, sheet_mm: tuple[float, float], margin_mm: float,
+                     spacing_mm: float) -> tuple[int, dict[tuple, bool]]:
+    """:func:`lower_bound_sheets`, and the exclusion proofs it made that were not kept before (for
+    a caller in another process to keep: :func:`keep_proofs`)."""
+    before = set(_EXCLUSIVE)
+    value = lower_bound_sheets(items, sheet_mm, margin_mm, spacing_mm)
+    return value, {k: v for k, v in _EXCLUSIVE.items() if k not in before}
+
+
+def keep_proofs(proofs: dict[tuple, bool]) -> None:
+    """Keep exclusion proofs made in another process (see :func:`bound_and_proofs`)."""
+    for key, value in proofs.items():
+        if len(_EXCLUSIVE) >= EXCLUSIVE_KEPT:
+            _EXCLUSIVE.clear()
+        _EXCLUSIVE[key] = value

@@ -81,13 +81,15 @@ def _windows(lib: ShapeLibrary, items: list[int]) -> list[tuple[float, float]]:
     return out
 
 
-def column_layout(lib: ShapeLibrary, counts: list[int], usable, work: Work, budget_units: int, lower: int = 1,
-                  stop: Callable[[], bool] = lambda: False, finished: int = 3, pairs: bool = False):
+def column_layout(lib: ShapeLibrary, counts: list[int], usable, work: Work, budget_units: int,
+                  lower: int | Callable[[], int] = 1, stop: Callable[[], bool] = lambda: False,
+                  finished: int = 3, pairs: bool = False):
     """Sheets as lists of (item, shape id, px, py) for ``counts`` copies of
     each item, or None when the budget ran out (or ``stop()`` said so) before
     one was finished, or there is nothing large. Stops early on a layout of
-    ``lower`` sheets; ``finished`` column layouts (the best) are completed
-    with the smaller parts and the best kept.
+    ``lower`` sheets (or ``lower()``, asked for once a layout is finished);
+    ``finished`` column layouts (the best) are completed with the smaller
+    parts and the best kept.
 
     With ``pairs``, the copies of each item that pairs well
     (:mod:`~sheetgen.production.nesting.pairs`) are also laid out two at a
@@ -115,7 +117,8 @@ def column_layout(lib: ShapeLibrary, counts: list[int], usable, work: Work, budg
             best = (final, placed)
 
     def more() -> bool:
-        return best is None or not (work.units >= budget_units or stop() or len(best[1]) <= lower)
+        return best is None or not (work.units >= budget_units or stop()
+                                    or len(best[1]) <= (lower() if callable(lower) else lower))
 
     for layouts in plain[2][:finished]:
         if not more():

@@ -45,7 +45,7 @@ import shapely
 from shapely.geometry import Polygon
 
 from sheetgen.errors import SheetgenError
-from sheetgen.production.nesting.bound import lower_bound_sheets
+from sheetgen.production.nesting.bound import bound_and_proofs, keep_proofs, lower_bound_sheets
 from sheetgen.production.nesting.decode import Decoder
 from sheetgen.production.nesting.model import NestItem, NestResult, PlacedPart
 from sheetgen.production.nesting.nfp import rotate_ccw
@@ -102,8 +102,9 @@ def nest(items: Sequence[NestItem], *, sheet_mm: tuple[float, float] | None = No
     the search. Raises :class:`SheetgenError` for bad input, including a part
     that fits the usable area in none of its allowed rotations, and
     :class:`RunTooLarge` for a run above the ceiling. ``jobs`` processes run
-    the :data:`SEARCHES` improvement searches of each stage side by side; the
-    layout does not depend on it.
+    the :data:`SEARCHES` improvement searches of each stage side by side, and
+    in sheet mode the lower bound beside the first layouts; the layout does
+    not depend on it.
     """
     t_start = time.monotonic()
     _validate_items(items)
@@ -194,13 +195,58 @@ def nest(items: Sequence[NestItem], *, sheet_mm: tuple[float, float] | None = No
 
     usable = (margin, margin, sheet_w - margin, sheet_h - margin)
     area_lower = max(1, math.ceil(total_area / (usable_w * usable_h) - 1e-9))
-    lower = lower_bound_sheets(items, (sheet_w, sheet_h), margin, spacing)
-    sheets, unplaced, stages, clocks = sheet_run(lib, counts, usable, lower, work, budget, rng, clock, jobs)
+    bound = _Bound(items, (sheet_w, sheet_h), margin, spacing, jobs)
+    sheets, unplaced, stages, clocks = sheet_run(lib, counts, usable, bound.get, work, budget, rng, clock, jobs)
+    lower = bound.get()
     if not unplaced and len(sheets) > lower:
         sheets = _empty_last(lib, sheets, usable, work, clock.stop)
     clock.report(1.0, "done")
     return _result(items, lib, sheets, unplaced, (sheet_w, sheet_h), margin, spacing, None, area_lower, lower,
                    _stopped_by(clock, stages, clocks), work.units)
+
+
+class _Bound:
+    """The run's lower bound of sheets (:func:`lower_bound_sheets`), the same number whenever it
+    is asked for. With ``jobs`` > 1 it is computed in a process of its own from the start, while
+    the first layouts are made (its proofs kept here too); ``get`` waits for it. With one job, or
+    when no process can be started, it is computed here first. The layout does not depend on which."""
+
+    def __init__(self, items: Sequence[NestItem], sheet_mm: tuple[float, float], margin: float, spacing: float,
+                 jobs: int) -> None:
+        self._args = ([NestItem(it.name, it.polygon, it.qty, tuple(it.rotations_deg)) for it in items],
+                      sheet_mm, margin, spacing)
+        self._value: int | None = None
+        self._pool = self._future = None
+        if jobs > 1:
+            try:
+                from concurrent.futures import ProcessPoolExecutor
+
+                self._pool = ProcessPoolExecutor(max_workers=1)
+                self._future = self._pool.submit(bound_and_proofs, *self._args)
+            except (OSError, RuntimeError, ImportError):
+                self._close()
+        if self._future is None:  # here and now: the run's clock counts it, as it counts the rest
+            self._value = int(lower_bound_sheets(*self._args))
+
+    def get(self) -> int:
+        if self._value is None:
+            if self._future is not None:
+                try:
+                    value, proofs = self._future.result()
+                    keep_proofs(proofs)  # the next run of the same parts in this process reuses them
+                    self._value = int(value)
+                except (OSError, RuntimeError, EOFError):  # a worker that died: the same sum here
+                    self._value = None
+                finally:
+                    self._close()
+            if self._value is None:
+                self._value = int(lower_bound_sheets(*self._args))
+        return self._value
+
+    def _close(self) -> None:
+        if self._pool is not None:
+            self._pool.shutdown(wait=False, cancel_futures=True)
+        self._pool = self._future = None
 
 
 def _stopped_by(clock: Clock, stages: list[Budget], clocks=()) -> str:
