@@ -196,8 +196,11 @@ def nest(items: Sequence[NestItem], *, sheet_mm: tuple[float, float] | None = No
     usable = (margin, margin, sheet_w - margin, sheet_h - margin)
     area_lower = max(1, math.ceil(total_area / (usable_w * usable_h) - 1e-9))
     bound = _Bound(items, (sheet_w, sheet_h), margin, spacing, jobs)
-    sheets, unplaced, stages, clocks = sheet_run(lib, counts, usable, bound.get, work, budget, rng, clock, jobs)
-    lower = bound.get()
+    try:
+        sheets, unplaced, stages, clocks = sheet_run(lib, counts, usable, bound.get, work, budget, rng, clock, jobs)
+        lower = bound.get()
+    finally:
+        bound.close()  # the pool is let go with the run, also when the run is cut short
     if not unplaced and len(sheets) > lower:
         sheets = _empty_last(lib, sheets, usable, work, clock.stop)
     clock.report(1.0, "done")
@@ -224,7 +227,7 @@ class _Bound:
                 self._pool = ProcessPoolExecutor(max_workers=1)
                 self._future = self._pool.submit(bound_and_proofs, *self._args)
             except (OSError, RuntimeError, ImportError):
-                self._close()
+                self.close()
         if self._future is None:  # here and now: the run's clock counts it, as it counts the rest
             self._value = int(lower_bound_sheets(*self._args))
 
@@ -238,12 +241,12 @@ class _Bound:
                 except (OSError, RuntimeError, EOFError):  # a worker that died: the same sum here
                     self._value = None
                 finally:
-                    self._close()
+                    self.close()
             if self._value is None:
                 self._value = int(lower_bound_sheets(*self._args))
         return self._value
 
-    def _close(self) -> None:
+    def close(self) -> None:
         if self._pool is not None:
             self._pool.shutdown(wait=False, cancel_futures=True)
         self._pool = self._future = None
