@@ -122,6 +122,32 @@ def test_nfp_agrees_with_the_overlap_test(pa, pb, seed):
         assert (moved.intersection(a).area > 1e-9) == nfp.contains(pt)
 
 
+@settings(max_examples=25)
+@given(parts(), parts(), st.integers(0, 2**31))
+def test_convex_piece_sums_agree_with_the_overlap_test_and_the_edge_sweep(pa, pb, seed):
+    # Source: the NFP definition, against shapely's intersection of the two polygons
+    # (independent computation), at random translations; and, as an internal cross-check,
+    # the same set as the edge sweep (nfp_paths) up to the grid's rounding.
+    from sheetgen.production.nesting.convex import convex_sum_paths
+    from sheetgen.production.nesting.nfp import nfp_paths, nfp_scale, paths_to_geometry
+
+    a, b = pa[0], pb[0]
+    scale = nfp_scale(a, b, 0.0)
+    paths = convex_sum_paths(a, b, scale)
+    assert paths is not None
+    nfp = paths_to_geometry(paths, scale)
+    sweep = paths_to_geometry(nfp_paths(a, b, 0.0, scale), scale)
+    assert nfp.symmetric_difference(sweep).area <= 1e-9 * sweep.area
+    rng = np.random.default_rng(seed)
+    x0, y0, x1, y1 = nfp.bounds
+    for x, y in rng.uniform((x0 - 2, y0 - 2), (x1 + 2, y1 + 2), size=(25, 2)):
+        pt = Point(x, y)
+        if nfp.boundary.distance(pt) < 1e-6:
+            continue
+        moved = affinity.translate(b, x, y)
+        assert (moved.intersection(a).area > 1e-9) == nfp.contains(pt)
+
+
 def test_nfp_with_spacing_keeps_the_gap():
     # Source: definition of the clear gap; a square moved to the right of another.
     a = b = box(0, 0, 1, 1)

@@ -31,8 +31,9 @@ import pytest
 import shapely
 from shapely import affinity
 
+from sheetgen.production.nesting.convex import convex_sum_paths
 from sheetgen.production.nesting.esicup import read_instance
-from sheetgen.production.nesting.nfp import inner_fit_rect, no_fit_polygon, shape_of
+from sheetgen.production.nesting.nfp import inner_fit_rect, nfp_scale, no_fit_polygon, paths_to_geometry, shape_of
 
 ESICUP = Path(__file__).resolve().parent / "data" / "esicup"
 # (polygon, polygon) pairs whose stored NFP does not describe those pieces
@@ -115,6 +116,67 @@ def test_turned_nfps_agree_with_the_overlap_test(instances, name, step):
         if name == "swim":
             # the stored SWIM NFPs for turned pieces are approximate, but close
             assert ours.symmetric_difference(nfp.polygon).area <= 0.01 * ours.area
+
+
+def _convex(a, b):
+    """The nester's fast path: the union of the sums of convex pieces
+    (sheetgen/production/nesting/convex.py)."""
+    scale = nfp_scale(a, b, 0.0)
+    paths = convex_sum_paths(a, b, scale)
+    assert paths is not None
+    return paths_to_geometry(paths, scale)
+
+
+@pytest.mark.parametrize("name, step, tol", [("shapes0", 1, 1e-9), ("shapes1", 1, 1e-9), ("swim", 3, 0.01)])
+def test_convex_piece_sums_match_the_stored_nfps(instances, name, step, tol):
+    # Source: ESICUP nfps/nfp entries with both angles 0, as in the test above, now against
+    # the union of the sums of convex pieces that the nester uses.
+    inst = instances[name]
+    checked = 0
+    for nfp in [n for n in inst.nfps if n.static_angle_deg == 0 and n.orbiting_angle_deg == 0][::step]:
+        if (nfp.static_polygon, nfp.orbiting_polygon) in WRONG_IN_FILE:
+            continue
+        a, _ = shape_of(inst.polygons[nfp.static_polygon], 0.0)
+        b, _ = shape_of(inst.polygons[nfp.orbiting_polygon], 0.0)
+        ours = _convex(a, b)
+        assert shapely.hausdorff_distance(ours.boundary, nfp.polygon.boundary) <= tol, nfp
+        assert ours.area == pytest.approx(nfp.polygon.area, rel=1e-4)
+        checked += 1
+    assert checked >= {"shapes0": 14, "shapes1": 14, "swim": 30}[name]
+
+
+@pytest.mark.parametrize("name, step", [("shapes1", 5), ("swim", 29)])
+def test_convex_piece_sums_of_turned_pieces_agree_with_the_overlap_test(instances, name, step):
+    # Source: shapely's overlap test of the two turned pieces, at random points, as above.
+    inst = instances[name]
+    rng = np.random.default_rng(13)
+    for nfp in [n for n in inst.nfps if n.static_angle_deg or n.orbiting_angle_deg][::step]:
+        a, _ = shape_of(inst.polygons[nfp.static_polygon], nfp.static_angle_deg)
+        b, _ = shape_of(inst.polygons[nfp.orbiting_polygon], nfp.orbiting_angle_deg)
+        ours = _convex(a, b)
+        x0, y0, x1, y1 = ours.bounds
+        pts = rng.uniform((x0 - 1, y0 - 1), (x1 + 1, y1 + 1), size=(40, 2))
+        assert _oracle_errors(a, b, ours, pts) == 0, nfp
+
+
+def test_convex_piece_sums_keep_the_room_inside_a_window():
+    # Plane geometry (common practice): an s x s square lies inside a ww x wh window, clear of
+    # its edges, exactly when its lower-left corner is inside a (ww - s) x (wh - s) rectangle
+    # at the window's lower-left corner; so the no-fit polygon of a framed plate and the
+    # square has that rectangle as its hole, and outside the plate it is the plate's box grown
+    # by s to the left and below. Checked on a plate with a notch (not convex), so the plate
+    # is cut into several pieces.
+    plate = shapely.Polygon([(0, 0), (100, 0), (100, 80), (60, 80), (60, 70), (40, 70), (40, 80), (0, 80)],
+                            [[(20, 15), (80, 15), (80, 55), (20, 55)]])
+    square = shapely.box(0, 0, 12, 12)
+    ours = _convex(plate, square)
+    # by hand: the plate's box grown by 12 to the left and below; the notch (20 wide, 10 deep,
+    # open at the top) takes the square with its corner at x in [40, 48], y in [70, 80]; the
+    # window takes it with its corner in [20, 68] x [15, 43]
+    expected = shapely.Polygon(shapely.box(-12, -12, 100, 80).difference(shapely.box(40, 70, 48, 80)).exterior,
+                               [shapely.box(20, 15, 80 - 12, 55 - 12).exterior])
+    assert ours.symmetric_difference(expected).area < 1e-9
+    assert _oracle_errors(plate, square, ours, [(44, 69), (44, 71), (30, 60), (44, 50), (19, 30), (21, 30)]) == 0
 
 
 @pytest.mark.parametrize("name", ["shapes0", "shapes1", "swim"])

@@ -46,6 +46,7 @@ import shapely
 from shapely.geometry import MultiPolygon, Polygon
 
 from sheetgen.geometry.shapes import one_polygon
+from sheetgen.production.nesting.convex import convex_sum_paths
 
 GRID_TARGET = float(2**45)
 
@@ -271,10 +272,13 @@ def is_convex(polygon: Polygon) -> bool:
 
 
 def fast_nfp_paths(fixed: Polygon, moving: Polygon, scale: float):
-    """The no-fit polygon as clipper paths, with two shortcuts that give the
-    same set: holes too small for the other part are filled first, and when
+    """The no-fit polygon as clipper paths, with shortcuts that give the
+    same set: holes too small for the other part are filled first; when
     both outlines are then convex the sum is the convex hull of all vertex
-    differences. Also returns a measure of the work done (vertex pairs)."""
+    differences, and otherwise the union of the sums of their convex pieces
+    (:mod:`~sheetgen.production.nesting.convex`; the edge sweep of
+    :func:`nfp_paths` when an outline cannot be cut). Also returns a measure of
+    the work done (vertex pairs)."""
     fx0, fy0, fx1, fy1 = fixed.bounds
     mx0, my0, mx1, my1 = moving.bounds
     a = fill_small_holes(fixed, mx1 - mx0, my1 - my0)
@@ -287,4 +291,5 @@ def fast_nfp_paths(fixed: Polygon, moving: Polygon, scale: float):
         return _polygon_paths(hull, scale), len(pa) * len(pb) // 8
     na = int(shapely.get_num_coordinates(a))
     nb = int(shapely.get_num_coordinates(b))
-    return nfp_paths(a, b, 0.0, scale), na * nb
+    paths = convex_sum_paths(a, b, scale)  # the union of the sums of convex pieces (convex.py)
+    return (nfp_paths(a, b, 0.0, scale) if paths is None else paths), na * nb
