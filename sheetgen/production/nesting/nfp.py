@@ -33,7 +33,10 @@ is about 3e-11 mm). It is the union of
   other way round).
 
 Every translation where the two overlap is in one of these three sets, and
-every translation in them makes the two meet, so the union is the sum.
+every translation in them makes the two meet, so the union is the sum. The
+nester itself takes a faster road to the same set (:func:`fast_nfp_paths`:
+the hull of the corner differences for two convex outlines, otherwise the
+union of the sums of convex pieces, :mod:`~sheetgen.production.nesting.convex`).
 """
 
 from __future__ import annotations
