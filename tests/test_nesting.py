@@ -148,6 +148,20 @@ def test_convex_piece_sums_agree_with_the_overlap_test_and_the_edge_sweep(pa, pb
         assert (moved.intersection(a).area > 1e-9) == nfp.contains(pt)
 
 
+def test_convex_pieces_cover_a_notched_plate_and_refuse_a_crossed_outline():
+    # Plane geometry (common practice): an L of two rectangles is two convex pieces at least,
+    # and their areas add up to the L's (hand count: 10 x 4 + 4 x 6 = 64); a crossed outline
+    # (a bow tie) bounds no region the pieces could cover, so it is left to the edge sweep.
+    from sheetgen.production.nesting.convex import convex_pieces
+
+    ell = Polygon([(0, 0), (10, 0), (10, 4), (4, 4), (4, 10), (0, 10)])
+    pieces = convex_pieces(ell)
+    assert pieces is not None and len(pieces) >= 2
+    assert sum(Polygon(p).area for p in pieces) == 64
+    assert all(Polygon(p).equals(Polygon(p).convex_hull) for p in pieces)
+    assert convex_pieces(Polygon([(0, 0), (10, 10), (10, 0), (0, 10)])) is None
+
+
 def test_nfp_with_spacing_keeps_the_gap():
     # Source: definition of the clear gap; a square moved to the right of another.
     a = b = box(0, 0, 1, 1)

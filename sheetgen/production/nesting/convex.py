@@ -43,7 +43,10 @@ def convex_pieces(region: Polygon) -> list[list[tuple[int, int]]] | None:
     triangulation, merged across shared edges (the longest first) while the union
     stays convex. None when the triangles do not cover the region exactly (a
     degenerate outline), so that the caller takes the general method."""
-    tris = shapely.get_parts(shapely.constrained_delaunay_triangles(region))
+    try:
+        tris = shapely.get_parts(shapely.constrained_delaunay_triangles(region))
+    except shapely.errors.GEOSException:  # an outline the triangulation refuses: the general method
+        return None
     tris = tris[~shapely.is_empty(tris)]
     if not len(tris):
         return None
