@@ -1,4 +1,6 @@
 """No-fit polygons and inner-fit rectangles against the ESICUP reference files.
+The no-fit polygons are checked on both roads: the edge sweep (``no_fit_polygon``)
+and the sums of convex pieces that the nester takes (``convex_sum_paths``).
 
 Outside source: the ESICUP 2D irregular data sets (shapes0.xml, shapes1.xml,
 swim.xml; CC0; copied unmodified into tests/data/esicup, see its
@@ -65,6 +67,15 @@ def _oracle_errors(a, b, region, points) -> int:
     return wrong
 
 
+def _convex(a, b):
+    """The nester's fast path: the union of the sums of convex pieces
+    (sheetgen/production/nesting/convex.py)."""
+    scale = nfp_scale(a, b, 0.0)
+    paths = convex_sum_paths(a, b, scale)
+    assert paths is not None
+    return paths_to_geometry(paths, scale)
+
+
 @pytest.mark.parametrize("name, step, tol", [("shapes0", 1, 1e-9), ("shapes1", 1, 1e-9), ("swim", 3, 0.01)])
 def test_unturned_nfps_match_the_stored_ones(instances, name, step, tol):
     # Source: ESICUP nfps/nfp entries with both angles 0 (exact integer data for
@@ -74,9 +85,10 @@ def test_unturned_nfps_match_the_stored_ones(instances, name, step, tol):
     for nfp in [n for n in inst.nfps if n.static_angle_deg == 0 and n.orbiting_angle_deg == 0][::step]:
         if (nfp.static_polygon, nfp.orbiting_polygon) in WRONG_IN_FILE:
             continue
-        _, _, ours = _ours(inst, nfp)
-        assert shapely.hausdorff_distance(ours.boundary, nfp.polygon.boundary) <= tol, nfp
-        assert ours.area == pytest.approx(nfp.polygon.area, rel=1e-4)
+        a, b, sweep = _ours(inst, nfp)
+        for ours in (sweep, _convex(a, b)):  # the edge sweep, and the convex pieces the nester uses
+            assert shapely.hausdorff_distance(ours.boundary, nfp.polygon.boundary) <= tol, nfp
+            assert ours.area == pytest.approx(nfp.polygon.area, rel=1e-4)
         checked += 1
     assert checked >= {"shapes0": 14, "shapes1": 14, "swim": 30}[name]
 
@@ -113,50 +125,10 @@ def test_turned_nfps_agree_with_the_overlap_test(instances, name, step):
         x0, y0, x1, y1 = ours.bounds
         pts = rng.uniform((x0 - 1, y0 - 1), (x1 + 1, y1 + 1), size=(40, 2))
         assert _oracle_errors(a, b, ours, pts) == 0, nfp
+        assert _oracle_errors(a, b, _convex(a, b), pts) == 0, nfp  # the convex pieces the nester uses
         if name == "swim":
             # the stored SWIM NFPs for turned pieces are approximate, but close
             assert ours.symmetric_difference(nfp.polygon).area <= 0.01 * ours.area
-
-
-def _convex(a, b):
-    """The nester's fast path: the union of the sums of convex pieces
-    (sheetgen/production/nesting/convex.py)."""
-    scale = nfp_scale(a, b, 0.0)
-    paths = convex_sum_paths(a, b, scale)
-    assert paths is not None
-    return paths_to_geometry(paths, scale)
-
-
-@pytest.mark.parametrize("name, step, tol", [("shapes0", 1, 1e-9), ("shapes1", 1, 1e-9), ("swim", 3, 0.01)])
-def test_convex_piece_sums_match_the_stored_nfps(instances, name, step, tol):
-    # Source: ESICUP nfps/nfp entries with both angles 0, as in the test above, now against
-    # the union of the sums of convex pieces that the nester uses.
-    inst = instances[name]
-    checked = 0
-    for nfp in [n for n in inst.nfps if n.static_angle_deg == 0 and n.orbiting_angle_deg == 0][::step]:
-        if (nfp.static_polygon, nfp.orbiting_polygon) in WRONG_IN_FILE:
-            continue
-        a, _ = shape_of(inst.polygons[nfp.static_polygon], 0.0)
-        b, _ = shape_of(inst.polygons[nfp.orbiting_polygon], 0.0)
-        ours = _convex(a, b)
-        assert shapely.hausdorff_distance(ours.boundary, nfp.polygon.boundary) <= tol, nfp
-        assert ours.area == pytest.approx(nfp.polygon.area, rel=1e-4)
-        checked += 1
-    assert checked >= {"shapes0": 14, "shapes1": 14, "swim": 30}[name]
-
-
-@pytest.mark.parametrize("name, step", [("shapes1", 5), ("swim", 29)])
-def test_convex_piece_sums_of_turned_pieces_agree_with_the_overlap_test(instances, name, step):
-    # Source: shapely's overlap test of the two turned pieces, at random points, as above.
-    inst = instances[name]
-    rng = np.random.default_rng(13)
-    for nfp in [n for n in inst.nfps if n.static_angle_deg or n.orbiting_angle_deg][::step]:
-        a, _ = shape_of(inst.polygons[nfp.static_polygon], nfp.static_angle_deg)
-        b, _ = shape_of(inst.polygons[nfp.orbiting_polygon], nfp.orbiting_angle_deg)
-        ours = _convex(a, b)
-        x0, y0, x1, y1 = ours.bounds
-        pts = rng.uniform((x0 - 1, y0 - 1), (x1 + 1, y1 + 1), size=(40, 2))
-        assert _oracle_errors(a, b, ours, pts) == 0, nfp
 
 
 def test_convex_piece_sums_keep_the_room_inside_a_window():

@@ -52,6 +52,7 @@ import shapely
 from shapely.geometry import Polygon, box
 from shapely.geometry.base import BaseGeometry
 
+from sheetgen.production.nesting.convex import merge_convex
 from sheetgen.production.nesting.nfp import rotate_ccw
 
 QUAD_SEGS = 16
@@ -116,41 +117,13 @@ def _triangles(region) -> list[np.ndarray]:
     if not len(tris):
         return []
     coords = shapely.get_coordinates(shapely.get_exterior_ring(tris)).reshape(len(tris), 4, 2)[:, :3, :]
-    pieces: list[list[tuple[float, float]] | None] = []
+    pieces: list[list[tuple[float, float]]] = []
     for t in coords:
         pts = [(float(x), float(y)) for x, y in t]
         if _cross(pts[0], pts[1], pts[2]) < 0:
             pts.reverse()
         pieces.append(pts)
-    owner: dict[tuple, int] = {}   # directed edge -> piece holding it
-    for k, corners in enumerate(pieces):
-        if corners is not None:
-            for j in range(len(corners)):
-                owner[(corners[j], corners[(j + 1) % len(corners)])] = k
-    # the longest shared edges first (their removal helps most)
-    edges = sorted({(min(e), max(e)) for e in owner if (e[1], e[0]) in owner},
-                   key=lambda e: (-math.dist(e[0], e[1]), e))
-    for u, v in edges:
-        if (u, v) not in owner or (v, u) not in owner:
-            continue
-        kp, kq = owner[(u, v)], owner[(v, u)]
-        p, q = pieces[kp], pieces[kq]
-        if kp == kq or p is None or q is None:
-            continue
-        i = p.index(v)
-        p_rot = p[i:] + p[:i]            # v ... u
-        j = q.index(u)
-        q_rot = q[j:] + q[:j]            # u ... v
-        merged = p_rot + q_rot[1:-1]
-        n = len(merged)
-        if any(_cross(merged[m - 1], merged[m], merged[(m + 1) % n]) < -1e-12 for m in range(n)):
-            continue
-        pieces[kp], pieces[kq] = merged, None
-        for m in range(n):
-            owner[(merged[m], merged[(m + 1) % n])] = kp
-        owner.pop((u, v), None)
-        owner.pop((v, u), None)
-    return [np.asarray(pts) for pts in pieces if pts is not None]
+    return [np.asarray(pts) for pts in merge_convex(pieces, 1e-12)]
 
 
 def _cross(a, b, c) -> float:

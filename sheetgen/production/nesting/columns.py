@@ -127,7 +127,7 @@ def column_layout(lib: ShapeLibrary, counts: list[int], usable, work: Work, budg
     if pairs and more():
         x0, y0, x1, y1 = usable
         sheet_area = (x1 - x0 + lib.spacing) * (y1 - y0 + lib.spacing)
-        counts2 = with_pairs(lib, counts, PAIR_SAVING * sheet_area)
+        counts2 = with_pairs(lib, counts, PAIR_SAVING * sheet_area, (x1 - x0, y1 - y0))
         if _pair_saving(lib, counts2) >= PAIR_SAVING * sheet_area:
             paired = _candidates(lib, counts2, usable, work, budget_units, stop)
             if paired is not None and paired[2] and more():
@@ -151,19 +151,22 @@ def _pair_saving(lib: ShapeLibrary, counts: list[int]) -> float:
     return saved
 
 
-def with_pairs(lib: ShapeLibrary, counts: list[int], least: float = 0.0) -> list[int]:
+def with_pairs(lib: ShapeLibrary, counts: list[int], least: float = 0.0,
+               room: tuple[float, float] = (math.inf, math.inf)) -> list[int]:
     """``counts`` over the library's items (pair items included) with the
-    copies of each item that pairs well taken two at a time as its pair item.
-    When the pairs could not save ``least`` box area in all (by the bound of
-    :func:`~sheetgen.production.nesting.pairs.saving_bound`), every item is
-    left single without computing a pair."""
+    copies of each item that pairs well taken two at a time as its pair item,
+    when the pair fits a ``room`` (width, height: the usable area) at one of
+    its angles. When the pairs could not save ``least`` box area in all (by
+    the bound of :func:`~sheetgen.production.nesting.pairs.saving_bound`),
+    every item is left single without computing a pair."""
     out = list(counts)
     real = [(i, c) for i, c in enumerate(counts) if c >= 2 and i not in lib.composite_items]
     if sum((c // 2) * saving_bound(lib, i) for i, c in real) < least:
         real = []
     for i, c in real:
         pi = pair_item(lib, i)
-        if pi is not None:
+        if pi is not None and any(lib.shapes[sid].width <= room[0] and lib.shapes[sid].height <= room[1]
+                                  for sid in lib.item_shapes[pi]):
             out.extend([0] * (len(lib.item_shapes) - len(out)))
             out[pi] += c // 2
             out[i] = c % 2
@@ -254,7 +257,10 @@ def _finish(lib: ShapeLibrary, classes, counts: list[int], layouts, usable, work
         placed.append(out)
     rest = [i for k, items in enumerate(classes) for i in pool[k][used[k]:]]
     if rest:
-        sheets, placed = _place_rest(lib, rest, usable, sheets, placed, work, stop)
+        got = _place_rest(lib, rest, usable, sheets, placed, work, stop)
+        if got is None:
+            return None
+        sheets, placed = got
     return placed
 
 
@@ -427,7 +433,8 @@ def _place_rest(lib: ShapeLibrary, rest: list[int], usable, sheets: list[Sheet],
     sheet with room (windows included), new sheets when none has. When
     ``stop()`` says so (the wall-clock ceiling), the parts not yet placed go
     in rows of boxes into the free ends of the sheets and onto new sheets
-    (:func:`~sheetgen.production.nesting.rows.box_rows`): the layout is always complete, and cheap to finish."""
+    (:func:`~sheetgen.production.nesting.rows.box_rows`): the layout is always complete, and cheap to finish.
+    None when a part fits no sheet at any of its angles (a pair larger than the sheet)."""
     hull = lib.hull_areas()
     order = sorted(range(len(rest)), key=lambda p: (-hull[rest[p]], rest[p], p))
     dec = Decoder(lib, rest, usable, len(rest) + len(sheets), work)
@@ -438,6 +445,8 @@ def _place_rest(lib: ShapeLibrary, rest: list[int], usable, sheets: list[Sheet],
             left = order[k:]
             break
         st = dec.step(st, p, None, RULES[0])
+    if st.unplaced:  # a part that fits no sheet at any of its angles: no layout, rather than a part lost
+        return None
     out = [list(x) for x in placed] + [[] for _ in range(len(st.sheets) - len(placed))]
     for part, si, sid, px, py in st.placements:
         out[si].append((rest[part], sid, px, py))

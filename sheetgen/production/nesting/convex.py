@@ -33,8 +33,40 @@ _PIECES: dict[tuple, tuple[np.ndarray, np.ndarray, np.ndarray] | None] = {}
 _LAST = 7.0                  # direction given to the padding (zero) edges: after every real edge (< 2 pi)
 
 
-def _cross(a: tuple[int, int], b: tuple[int, int], c: tuple[int, int]) -> int:
+def _cross(a, b, c):
     return (b[0] - a[0]) * (c[1] - a[1]) - (b[1] - a[1]) * (c[0] - a[0])
+
+
+def merge_convex(pieces: list, slack: float) -> list:
+    """Counter-clockwise polygons (lists of corner tuples) that tile a region, merged across
+    their shared edges, the longest first, while the merged polygon stays convex: no corner
+    turns clockwise by more than ``slack`` (as a cross product; 0 for exact integer corners)."""
+    pieces = list(pieces)
+    owner: dict[tuple, int] = {}   # directed edge -> piece holding it
+    for k, corners in enumerate(pieces):
+        for j in range(len(corners)):
+            owner[(corners[j], corners[(j + 1) % len(corners)])] = k
+    shared = sorted({(min(e), max(e)) for e in owner if (e[1], e[0]) in owner},
+                    key=lambda e: (-math.dist(e[0], e[1]), e))
+    for u, v in shared:
+        if (u, v) not in owner or (v, u) not in owner:
+            continue
+        kp, kq = owner[(u, v)], owner[(v, u)]
+        p, q = pieces[kp], pieces[kq]
+        if kp == kq or p is None or q is None:
+            continue
+        i = p.index(v)
+        j = q.index(u)
+        merged = p[i:] + p[:i] + (q[j:] + q[:j])[1:-1]   # v ... u, then q's corners between u and v
+        n = len(merged)
+        if any(_cross(merged[m - 1], merged[m], merged[(m + 1) % n]) < -slack for m in range(n)):
+            continue
+        pieces[kp], pieces[kq] = merged, None
+        for m in range(n):
+            owner[(merged[m], merged[(m + 1) % n])] = kp
+        owner.pop((u, v), None)
+        owner.pop((v, u), None)
+    return [p for p in pieces if p is not None]
 
 
 def convex_pieces(region: Polygon) -> list[list[tuple[int, int]]] | None:
@@ -51,7 +83,7 @@ def convex_pieces(region: Polygon) -> list[list[tuple[int, int]]] | None:
     if not len(tris):
         return None
     coords = shapely.get_coordinates(shapely.get_exterior_ring(tris)).reshape(len(tris), 4, 2)[:, :3, :]
-    pieces: list[list[tuple[int, int]] | None] = []
+    pieces: list[list[tuple[int, int]]] = []
     twice_area = 0
     for t in coords:
         pts = [(int(x), int(y)) for x, y in t]
@@ -64,32 +96,7 @@ def convex_pieces(region: Polygon) -> list[list[tuple[int, int]]] | None:
         pieces.append(pts)
     if abs(twice_area - 2.0 * region.area) > 1e-9 * twice_area:
         return None
-    owner: dict[tuple, int] = {}   # directed edge -> piece holding it
-    for k, corners in enumerate(pieces):
-        assert corners is not None
-        for j in range(len(corners)):
-            owner[(corners[j], corners[(j + 1) % len(corners)])] = k
-    shared = sorted({(min(e), max(e)) for e in owner if (e[1], e[0]) in owner},
-                    key=lambda e: (-math.dist(e[0], e[1]), e))
-    for u, v in shared:
-        if (u, v) not in owner or (v, u) not in owner:
-            continue
-        kp, kq = owner[(u, v)], owner[(v, u)]
-        p, q = pieces[kp], pieces[kq]
-        if kp == kq or p is None or q is None:
-            continue
-        i = p.index(v)
-        j = q.index(u)
-        merged = p[i:] + p[:i] + (q[j:] + q[:j])[1:-1]   # v ... u, then q's corners between u and v
-        n = len(merged)
-        if any(_cross(merged[m - 1], merged[m], merged[(m + 1) % n]) < 0 for m in range(n)):
-            continue
-        pieces[kp], pieces[kq] = merged, None
-        for m in range(n):
-            owner[(merged[m], merged[(m + 1) % n])] = kp
-        owner.pop((u, v), None)
-        owner.pop((v, u), None)
-    return [p for p in pieces if p is not None]
+    return merge_convex(pieces, 0)
 
 
 def _prepared(pieces: list[list[tuple[int, int]]]) -> tuple[np.ndarray, np.ndarray, np.ndarray]:

@@ -127,8 +127,8 @@ class ShapeLibrary:
         ((shape id, dx, dy), each offset of its reference point from the
         composite's lower-left corner): its clearance outline is the union of
         theirs, so it keeps their windows; area and box are the parts'. Returns
-        its shape id (the same id for a geometry registered before), or None
-        when the outlines do not join into one polygon."""
+        its shape id (the same id when this item's composite of that outline was
+        registered before), or None when the outlines do not join into one polygon."""
         outs = []
         for sid, dx, dy in parts:
             shift = np.array([dx, dy], dtype=float) / self.scale
@@ -136,25 +136,32 @@ class ShapeLibrary:
         outline = shapely.union_all(outs)
         if not isinstance(outline, Polygon):
             return None
-        key = _shape_key(outline)
-        hit = self._composite_keys.get(key)
+        geometry = _shape_key(outline)
+        hit = self._composite_keys.get((item, geometry))
         if hit is not None:
             return hit
         width = max(dx / self.scale + self.shapes[sid].width for sid, dx, _dy in parts)
         height = max(dy / self.scale + self.shapes[sid].height for sid, _dx, dy in parts)
-        canon = self._next_canon
-        self._next_canon += 1
+        # a composite of the same outline made for another item (two items of one shape) shares its
+        # no-fit polygons, never its shape id: a shape id stands for the parts of one item
+        twin = next((sid for (_i, g), sid in self._composite_keys.items() if g == geometry), None)
+        if twin is not None:
+            canon = self.shapes[twin].canon
+        else:
+            canon = self._next_canon
+            self._next_canon += 1
         first = self.shapes[parts[0][0]]
         # the polygon of a composite is its clearance outline (one polygon, holding the parts' windows);
         # its area is the parts' own
         self.shapes.append(Shape(outline, first.angle_deg, first.offset, width, height,
                                  sum(self.shapes[sid].area for sid, _dx, _dy in parts), canon))
         sid_new = len(self.shapes) - 1
-        self._canon_rep[canon] = sid_new
-        self._outline[canon] = outline
-        self._obox[canon] = tuple(v * self.scale for v in outline.bounds)
+        if twin is None:
+            self._canon_rep[canon] = sid_new
+            self._outline[canon] = outline
+            self._obox[canon] = tuple(v * self.scale for v in outline.bounds)
         self.composites[sid_new] = (item, tuple(parts))
-        self._composite_keys[key] = sid_new
+        self._composite_keys[(item, geometry)] = sid_new
         return sid_new
 
     def parts_of(self, item: int) -> list[int]:
