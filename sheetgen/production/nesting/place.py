@@ -120,7 +120,8 @@ class ShapeLibrary:
         self.pair_items: dict[int, int | None] = {}
         self.composite_items: set[int] = set()   # the pair items
         self._next_canon = len(canon_of)
-        self._composite_keys: dict[tuple, int] = {}
+        self._composite_keys: dict[tuple, int] = {}     # (item, outline) -> composite shape id
+        self._composite_canons: dict[tuple, int] = {}   # outline -> its canonical id (shared by twin items)
 
     def add_composite(self, item: int, parts: tuple[tuple[int, int, int], ...]) -> int | None:
         """A shape made of shapes of ``item`` at grid offsets ``parts``
@@ -144,19 +145,19 @@ class ShapeLibrary:
         height = max(dy / self.scale + self.shapes[sid].height for sid, _dx, dy in parts)
         # a composite of the same outline made for another item (two items of one shape) shares its
         # no-fit polygons, never its shape id: a shape id stands for the parts of one item
-        twin = next((sid for (_i, g), sid in self._composite_keys.items() if g == geometry), None)
-        if twin is not None:
-            canon = self.shapes[twin].canon
-        else:
+        canon = self._composite_canons.get(geometry)
+        twin = canon is not None
+        if canon is None:
             canon = self._next_canon
             self._next_canon += 1
+            self._composite_canons[geometry] = canon
         first = self.shapes[parts[0][0]]
         # the polygon of a composite is its clearance outline (one polygon, holding the parts' windows);
         # its area is the parts' own
         self.shapes.append(Shape(outline, first.angle_deg, first.offset, width, height,
                                  sum(self.shapes[sid].area for sid, _dx, _dy in parts), canon))
         sid_new = len(self.shapes) - 1
-        if twin is None:
+        if not twin:
             self._canon_rep[canon] = sid_new
             self._outline[canon] = outline
             self._obox[canon] = tuple(v * self.scale for v in outline.bounds)
